@@ -1,0 +1,47 @@
+import { fileURLToPath } from 'node:url';
+import { sveltekit } from '@sveltejs/kit/vite';
+import tailwindcss from '@tailwindcss/vite';
+import { svelteTesting } from '@testing-library/svelte/vite';
+import { defineConfig } from 'vitest/config';
+
+export default defineConfig({
+	plugins: [tailwindcss(), sveltekit()],
+	optimizeDeps: { exclude: ['@electric-sql/pglite'] },
+	ssr: { external: ['@electric-sql/pglite', 'sharp', '@node-rs/argon2'] },
+	test: {
+		expect: { requireAssertions: true },
+		projects: [
+			{
+				extends: true,
+				plugins: [svelteTesting()],
+				test: {
+					name: 'components',
+					environment: 'jsdom',
+					include: ['src/**/*.svelte.spec.ts'],
+					setupFiles: ['./src/vitest-setup-client.ts']
+				},
+				// @xstate/svelte's "import" entry require()s a second copy of Svelte; use its ESM build.
+				resolve: {
+					alias: {
+						'@xstate/svelte': fileURLToPath(
+							new URL('./node_modules/@xstate/svelte/dist/xstate-svelte.esm.js', import.meta.url)
+						)
+					}
+				}
+			},
+			{
+				extends: true,
+				test: {
+					name: 'server',
+					environment: 'node',
+					include: ['src/**/*.spec.ts', 'scripts/**/*.spec.ts'],
+					exclude: ['src/**/*.svelte.spec.ts'],
+					env: { DATA_DIR: 'memory://', AUTH_SECRET: 'test-secret-test-secret-test-secret-0123' },
+					// Each in-memory PGlite costs about 2 s (WASM compile + initdb).
+					testTimeout: 30_000,
+					hookTimeout: 60_000
+				}
+			}
+		]
+	}
+});
