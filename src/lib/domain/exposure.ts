@@ -1,0 +1,270 @@
+/**
+ * Exposure triage at intake: was what the phone went through within what its IP rating was tested
+ * for? IEC 60529 (as summarised in docs/trade-reference.md §1) fixes the tests:
+ *
+ * - second digit 7: temporary immersion, 1 m for 30 min, fresh water;
+ * - second digit 8: continuous immersion on terms the maker declares, which must be harsher than 7
+ *   (deeper than 1 m and/or longer than 30 min), e.g. "IP68, up to 6 m for 30 min";
+ * - digits 7/8 do not imply the splash and jet tests (4–6) unless the code says both ("IP65/IP68").
+ *
+ * Our design choices, not the standard's: limits are inclusive; only fresh water counts as the test
+ * liquid; a result of "within" never means "undamaged" — seals weaken with age, drops and earlier
+ * opening (common practice), so the explanation says so.
+ */
+import { z } from 'zod';
+import { parseIpCode, type IpCode } from './ipCode';
+
+export { parseIpCode, type IpCode };
+
+export const liquidKinds = ['fresh', 'salt', 'chlorinated', 'sugary', 'other', 'unknown'] as const;
+export type LiquidKind = (typeof liquidKinds)[number];
+
+export const exposureStatuses = [
+	'within',
+	'exceeded',
+	'outside-test-conditions',
+	'undetermined',
+	'invalid-rating'
+] as const;
+export type ExposureStatus = (typeof exposureStatuses)[number];
+
+export const exposureReasons = ['depth', 'duration', 'liquid', 'no-immersion-rating'] as const;
+export type ExposureReason = (typeof exposureReasons)[number];
+
+/** The device's rated protection. `code: null` (or "none") means the maker claims none. */
+export const ratingSchema = z.object({
+	code: z
+		.string()
+		.trim()
+		.max(40)
+		.nullable()
+		.refine((code) => code === null || parseIpCode(code) !== 'invalid', {
+			message: 'Not an IP code — write it like IP67, IPX7 or IP65/IP68, or leave it empty'
+		}),
+	declaredDepthM: z.number().positive().max(1000).optional(),
+	declaredMinutes: z.number().positive().max(100_000).optional()
+});
+export type DeviceRating = z.infer<typeof ratingSchema>;
+
+/** What happened to the phone. Depth and minutes may be unknown (the customer is not sure). */
+export const exposureSchema = z.object({
+	liquid: z.enum(liquidKinds),
+	submerged: z.boolean(),
+	depthM: z.number().nonnegative().max(1000).optional(),
+	minutes: z.number().nonnegative().max(1_000_000).optional()
+});
+export type Exposure = z.infer<typeof exposureSchema>;
+
+export interface ExposureAssessment {
+	status: ExposureStatus;
+	reasons: ExposureReason[];
+	explanation: string;
+}
+
+/** Said whenever a result could be read as "the phone is fine". */
+const SEALS_CAVEAT =
+	'A rating describes a new phone in a lab; age, drops and earlier opening weaken the seals (common practice), so inspect inside anyway.';
+
+const LIQUID_WORDS: Record<LiquidKind, string> = {
+	fresh: 'fresh water',
+	salt: 'salt water',
+	chlorinated: 'chlorinated water',
+	sugary: 'a sugary drink',
+	other: 'a liquid other than fresh water',
+	unknown: 'an unknown liquid'
+};
+
+const num = (value: number) => String(Number(value.toFixed(2)));
+
+/** The immersion test the rating stands for, or a reason why there is none to compare against. */
+type Limits =
+	| { kind: 'limits'; depthM: number; minutes: number; label: string }
+	| { kind: 'none' }
+	| { kind: 'invalid'; why: string }
+	| { kind: 'undeclared'; code: string };
+
+function immersionLimits(rating: DeviceRating, ip: IpCode | null): Limits {
+	if (ip === null || ip.immersion === null) return { kind: 'none' };
+	if (ip.immersion === 7)
+		return { kind: 'limits', depthM: 1, minutes: 30, label: `${ip.code} (1 m for 30 min)` };
+	const { declaredDepthM: depth, declaredMinutes: minutes } = rating;
+	if (depth === undefined || minutes === undefined) return { kind: 'undeclared', code: ip.code };
+	if (!(depth > 0 && minutes > 0 && Number.isFinite(depth) && Number.isFinite(minutes))) {
+		return { kind: 'invalid', why: 'the declared depth and minutes must be positive numbers' };
+	}
+	if (depth <= 1 && minutes <= 30) {
+		return {
+			kind: 'invalid',
+			why: `IP68 must be harsher than IP67's 1 m for 30 min, but the declaration is ${num(depth)} m for ${num(minutes)} min`
+		};
+	}
+	return {
+		kind: 'limits',
+		depthM: depth,
+		minutes,
+		label: `${ip.code} (${num(depth)} m for ${num(minutes)} min)`
+	};
+}
+
+function checkExposureNumbers(exposure: Exposure): void {
+	for (const [name, value] of [
+		['depthM', exposure.depthM],
+		['minutes', exposure.minutes]
+	] as const) {
+		if (value !== undefined && !(Number.isFinite(value) && value >= 0)) {
+			throw new RangeError(`exposure.${name} must be a finite number ≥ 0 (got ${value})`);
+		}
+	}
+}
+
+/**
+ * Compares an exposure with the device's rating. Precedence, most telling first: an invalid rating;
+ * a broken limit ("exceeded", which holds whatever the liquid was); a liquid other than fresh water
+ * ("outside-test-conditions"); missing numbers ("undetermined"); otherwise "within".
+ * `reasons` lists every finding that applies, so "exceeded" in salt water also carries `liquid`.
+ */
+export function assessExposure(rating: DeviceRating, exposure: Exposure): ExposureAssessment {
+	checkExposureNumbers(exposure);
+	const ip = parseIpCode(rating.code);
+	if (ip === 'invalid') {
+		return {
+			status: 'invalid-rating',
+			reasons: [],
+			explanation: `"${rating.code}" is not an IP code (expected something like IP67, IPX7 or IP65/IP68). Check the rating and enter it again.`
+		};
+	}
+	const limits = immersionLimits(rating, ip);
+	if (limits.kind === 'invalid') {
+		return {
+			status: 'invalid-rating',
+			reasons: [],
+			explanation: `The rating cannot be right: ${limits.why}.`
+		};
+	}
+	const freshWater = exposure.liquid === 'fresh';
+	const liquidNote = freshWater
+		? ''
+		: ` The liquid was ${LIQUID_WORDS[exposure.liquid]}; IP tests use fresh water only, so the rating says nothing about it.`;
+	const liquidReason: ExposureReason[] = freshWater ? [] : ['liquid'];
+
+	if (!exposure.submerged) return assessSplash(ip, freshWater, liquidNote);
+
+	if (limits.kind === 'none') {
+		const rated =
+			ip === null ? 'The phone has no IP rating' : `${ip.code} has no immersion rating (second digit 7 or 8)`;
+		return {
+			status: 'exceeded',
+			reasons: ['no-immersion-rating', ...liquidReason],
+			explanation: `${rated}, and it was submerged: expect liquid inside.${liquidNote}`
+		};
+	}
+	if (limits.kind === 'undeclared') {
+		const missing = `${limits.code} is only meaningful with the maker's declared depth and minutes, which are missing; look them up for this model.`;
+		return freshWater
+			? { status: 'undetermined', reasons: [], explanation: missing }
+			: { status: 'outside-test-conditions', reasons: ['liquid'], explanation: `${missing}${liquidNote}` };
+	}
+
+	const { depthM, minutes } = exposure;
+	const over: ExposureReason[] = [];
+	const words: string[] = [];
+	if (depthM !== undefined && depthM > limits.depthM) {
+		over.push('depth');
+		words.push(`${num(depthM)} m is deeper than ${num(limits.depthM)} m`);
+	}
+	if (minutes !== undefined && minutes > limits.minutes) {
+		over.push('duration');
+		words.push(`${num(minutes)} min is longer than ${num(limits.minutes)} min`);
+	}
+	if (over.length > 0) {
+		return {
+			status: 'exceeded',
+			reasons: [...over, ...liquidReason],
+			explanation: `Beyond the rated test of ${limits.label}: ${words.join(' and ')}. Expect liquid inside.${liquidNote}`
+		};
+	}
+	if (!freshWater) {
+		const compared =
+			depthM !== undefined && minutes !== undefined
+				? `Depth and time are within ${limits.label}.`
+				: `Depth or time is not known, so it was not compared with ${limits.label}.`;
+		return {
+			status: 'outside-test-conditions',
+			reasons: ['liquid'],
+			explanation: `${compared}${liquidNote}`
+		};
+	}
+	if (depthM === undefined || minutes === undefined) {
+		const unknown = [depthM === undefined && 'depth', minutes === undefined && 'time']
+			.filter(Boolean)
+			.join(' and ');
+		return {
+			status: 'undetermined',
+			reasons: [],
+			explanation: `The ${unknown} under water is not known, so it cannot be compared with ${limits.label}. Ask the customer for a best guess.`
+		};
+	}
+	return {
+		status: 'within',
+		reasons: [],
+		explanation: `Within the rated test of ${limits.label}: ${num(depthM)} m for ${num(minutes)} min in fresh water. ${SEALS_CAVEAT}`
+	};
+}
+
+/** Splashes and spills: immersion limits do not apply; digits 4–6 are the tests that come closest. */
+function assessSplash(ip: IpCode | null, freshWater: boolean, liquidNote: string): ExposureAssessment {
+	const lead = 'Not submerged (a splash or spill), so the immersion limits do not apply.';
+	if (!freshWater) {
+		return { status: 'outside-test-conditions', reasons: ['liquid'], explanation: `${lead}${liquidNote}` };
+	}
+	const splashDigit = ip?.water.find((digit) => digit >= 4 && digit <= 6);
+	if (ip && splashDigit !== undefined) {
+		return {
+			status: 'within',
+			reasons: [],
+			explanation: `${lead} ${ip.code} includes a splash or jet test (second digit ${splashDigit}) in fresh water. ${SEALS_CAVEAT}`
+		};
+	}
+	const why =
+		ip === null
+			? 'The phone has no IP rating.'
+			: ip.immersion !== null
+				? `${ip.code} is an immersion rating; IEC 60529 does not say digits 7 and 8 cover splashes or jets.`
+				: `${ip.code} does not include a splash test (second digit 4 to 6).`;
+	return { status: 'undetermined', reasons: [], explanation: `${lead} ${why} Open and inspect.` };
+}
+
+export type UrgencyLevel = 'low' | 'elevated' | 'high' | 'critical';
+
+/**
+ * How soon the board should be opened and cleaned. COMMON PRACTICE, NO PUBLISHED SOURCE: salt and
+ * sugary liquids corrode fastest, chlorinated and unknown liquids next, fresh water slowest; every
+ * hour the phone waits (worse still if it is powered) adds corrosion. The weights and hour bands below
+ * are our own rule of thumb, not measured rates. `null` hours means the customer does not know.
+ */
+export function urgencyHint(
+	hoursSinceExposure: number | null,
+	liquid: LiquidKind
+): { level: UrgencyLevel; text: string } {
+	if (hoursSinceExposure !== null && !(Number.isFinite(hoursSinceExposure) && hoursSinceExposure >= 0)) {
+		throw new RangeError(
+			`hoursSinceExposure must be a finite number ≥ 0 or null (got ${hoursSinceExposure})`
+		);
+	}
+	const liquidWeight = liquid === 'fresh' ? 0 : liquid === 'salt' || liquid === 'sugary' ? 2 : 1;
+	const h = hoursSinceExposure;
+	const waitBand = h === null ? 1 : h < 6 ? 0 : h < 24 ? 1 : h < 72 ? 2 : 3;
+	const levels: UrgencyLevel[] = ['low', 'elevated', 'high', 'critical'];
+	const level = levels[Math.min(3, liquidWeight + waitBand)];
+	const when = h === null ? 'an unknown time ago' : `${num(h)} h ago`;
+	const advice =
+		level === 'low'
+			? 'Open and clean it today.'
+			: level === 'elevated'
+				? 'Open and clean it soon, ahead of routine jobs.'
+				: 'Open and clean it now, before other work.';
+	return {
+		level,
+		text: `${LIQUID_WORDS[liquid][0].toUpperCase()}${LIQUID_WORDS[liquid].slice(1)}, ${when}: ${level} urgency. Disconnect the battery first. ${advice} (Common practice, no published source: salt and sugary liquids corrode fastest, and every hour of waiting makes it worse.)`
+	};
+}
