@@ -1,7 +1,10 @@
 import adapter from '@sveltejs/adapter-node';
 import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
 import { mdsvex } from 'mdsvex';
+import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
+
+const pkg = JSON.parse(readFileSync(new URL('./package.json', import.meta.url), 'utf8'));
 
 /** @type {import('@sveltejs/kit').Config} */
 export default {
@@ -22,6 +25,7 @@ export default {
 	},
 	kit: {
 		adapter: adapter(),
+		version: { name: pkg.version },
 		csp: {
 			mode: 'auto',
 			directives: {

@@ -1,0 +1,31 @@
+import { building } from '$app/environment';
+import type { ServerInit } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { authHandle } from '$lib/server/auth';
+import { closeDb } from '$lib/server/db';
+import { DataDirInUseError } from '$lib/server/db/lock';
+import { headersHandle } from '$lib/server/hooks/headers';
+import { userHandle } from '$lib/server/hooks/user';
+import { startup } from '$lib/server/startup';
+import '$lib/server/startup-tasks';
+
+export const init: ServerInit = async () => {
+	if (building) return;
+	if (!process.env.AUTH_SECRET) {
+		console.error('AUTH_SECRET is not set. Set it to a long random string (see README), or use `npm start` for the demo.');
+		process.exit(1);
+	}
+	try {
+		await startup();
+	} catch (e) {
+		if (e instanceof DataDirInUseError) {
+			console.error(e.message);
+			process.exit(1);
+		}
+		throw e;
+	}
+	// adapter-node emits this after SIGINT/SIGTERM once the HTTP server has drained.
+	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void closeDb());
+};
+
+export const handle = sequence(authHandle, userHandle, headersHandle);

@@ -1,0 +1,21 @@
+import { hasRole, type Role } from '$lib/roles';
+
+export type NavItem = { href: string; label: string; role: Role };
+
+/**
+ * The app's sections, each with the least role that may open it. The shell shows only what the
+ * signed-in role may use; each route's own server guard decides access. Add a section here when
+ * its route exists.
+ */
+export const navItems: NavItem[] = [
+	{ href: '/', label: 'Today', role: 'technician' },
+	{ href: '/staff', label: 'Staff', role: 'lead' }
+];
+
+export function navFor(role: Role) {
+	return navItems.filter((item) => hasRole(role, item.role));
+}
+
+export function isCurrent(href: string, pathname: string) {
+	return href === '/' ? pathname === '/' : pathname === href || pathname.startsWith(href + '/');
+}

@@ -1,0 +1,42 @@
+import { sql } from 'drizzle-orm';
+import { boolean, check, index, jsonb, pgTable, text, timestamp, uniqueIndex, uuid, bigserial } from 'drizzle-orm/pg-core';
+import { roles } from '../../../roles';
+
+export const roleEnumValues = roles;
+
+export const users = pgTable(
+	'users',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		name: text('name').notNull(),
+		email: text('email').notNull(),
+		role: text('role', { enum: roles }).notNull().default('technician'),
+		passwordHash: text('password_hash').notNull(),
+		disabled: boolean('disabled').notNull().default(false),
+		/** Set when a lead issues a temporary password; the member is asked to choose their own. */
+		mustChangePassword: boolean('must_change_password').notNull().default(false),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		uniqueIndex('users_email_lower_idx').on(sql`lower(${t.email})`),
+		check('users_role_check', sql`${t.role} in ('technician', 'senior', 'lead')`)
+	]
+);
+
+export const auditLog = pgTable(
+	'audit_log',
+	{
+		id: bigserial('id', { mode: 'number' }).primaryKey(),
+		actorId: uuid('actor_id').references(() => users.id),
+		action: text('action').notNull(),
+		targetType: text('target_type').notNull(),
+		targetId: text('target_id'),
+		details: jsonb('details').$type<Record<string, unknown>>().notNull().default({}),
+		at: timestamp('at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [index('audit_log_target_idx').on(t.targetType, t.targetId), index('audit_log_at_idx').on(t.at)]
+);
+
+export type User = typeof users.$inferSelect;
+export type AuditEntry = typeof auditLog.$inferSelect;
