@@ -68,6 +68,7 @@ export function rangeProblems(stepId: string, step: MeasureStep): FlowProblem[] 
 		return problems;
 	}
 	const [dlo, dhi] = [lo(domain), hi(domain)];
+	if (ranges.length === 0) return problems; // reported as no-exits
 
 	const usable: number[] = [];
 	ranges.forEach((r, i) => {
