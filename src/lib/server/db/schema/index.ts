@@ -1,3 +1,4 @@
 // Every table of the app, one file per domain. drizzle-kit reads this file to generate migrations.
 export * from './users';
 export * from './settings';
+export * from './flows';
