@@ -2,3 +2,5 @@
 export * from './users';
 export * from './settings';
 export * from './flows';
+export * from './mail';
+export * from './payments';

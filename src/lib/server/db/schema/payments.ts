@@ -1,0 +1,53 @@
+import { sql } from 'drizzle-orm';
+import { check, index, integer, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+
+export const paymentStatuses = ['pending', 'paid', 'failed', 'refunded'] as const;
+export type PaymentStatus = (typeof paymentStatuses)[number];
+
+/**
+ * One hosted checkout: what it is for (`reference_type`/`reference_id`, e.g. 'job', id — plain
+ * text so any domain can take payments), the amount in integer minor units, and where it stands.
+ * No card data is ever stored: the payment service holds it; we keep its session id.
+ */
+export const payments = pgTable(
+	'payments',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		referenceType: text('reference_type').notNull(),
+		referenceId: text('reference_id').notNull(),
+		description: text('description').notNull(),
+		amountMinor: integer('amount_minor').notNull(),
+		/** ISO 4217 code, lower case as the payment service writes it. */
+		currency: text('currency').notNull(),
+		status: text('status', { enum: paymentStatuses }).notNull().default('pending'),
+		providerSessionId: text('provider_session_id'),
+		/** Why a payment failed, as the service or our checks said it; shown to staff. */
+		failureReason: text('failure_reason'),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+		paidAt: timestamp('paid_at', { withTimezone: true })
+	},
+	(t) => [
+		uniqueIndex('payments_provider_session_idx').on(t.providerSessionId),
+		index('payments_reference_idx').on(t.referenceType, t.referenceId),
+		check('payments_status_check', sql`${t.status} in ('pending', 'paid', 'failed', 'refunded')`),
+		check('payments_amount_check', sql`${t.amountMinor} > 0`),
+		check('payments_currency_check', sql`${t.currency} ~ '^[a-z]{3}$'`)
+	]
+);
+
+/**
+ * Each webhook event id the app has accepted, recorded in the same transaction as its effect: a
+ * replayed or duplicate delivery finds its id here and changes nothing.
+ */
+export const paymentEvents = pgTable('payment_events', {
+	eventId: text('event_id').primaryKey(),
+	type: text('type').notNull(),
+	paymentId: uuid('payment_id').references(() => payments.id),
+	/** What the event did: 'applied', or why it was ignored. */
+	outcome: text('outcome').notNull(),
+	receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow()
+});
+
+export type Payment = typeof payments.$inferSelect;
+export type PaymentEvent = typeof paymentEvents.$inferSelect;
