@@ -17,7 +17,15 @@ export default defineConfig({
 		launchOptions: {
 			// Debian's package; a browser download is impossible on this network.
 			executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-			args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync']
+			args: [
+				'--no-sandbox',
+				'--disable-gpu',
+				'--disable-quic',
+				'--no-first-run',
+				'--disable-background-networking',
+				'--disable-component-update',
+				'--disable-sync'
+			]
 		}
 	},
 	webServer: {

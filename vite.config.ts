@@ -1,8 +1,12 @@
+import fs from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { sveltekit } from '@sveltejs/kit/vite';
 import tailwindcss from '@tailwindcss/vite';
 import { svelteTesting } from '@testing-library/svelte/vite';
 import { defineConfig } from 'vitest/config';
+
+// `npm run dev` reads a local .env into process.env (the server code reads process.env directly).
+if (!process.env.VITEST && fs.existsSync('.env')) process.loadEnvFile('.env');
 
 export default defineConfig({
 	plugins: [tailwindcss(), sveltekit()],

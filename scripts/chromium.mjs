@@ -18,7 +18,10 @@ export function ensureChromium() {
 	}
 	console.log('Installing Debian chromium for the browser tests…');
 	execFileSync('apt-get', ['update', '-qq'], { stdio: 'inherit' });
-	execFileSync('apt-get', ['install', '-y', '-qq', 'chromium'], { stdio: 'inherit', env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } });
+	execFileSync('apt-get', ['install', '-y', '-qq', 'chromium'], {
+		stdio: 'inherit',
+		env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' }
+	});
 	if (!fs.existsSync(wanted)) throw new Error('apt-get finished but /usr/bin/chromium is still missing.');
 	return wanted;
 }

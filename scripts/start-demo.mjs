@@ -15,7 +15,8 @@ function newestMtime(dir) {
 	let newest = 0;
 	if (!fs.existsSync(dir)) return newest;
 	for (const entry of fs.readdirSync(dir, { withFileTypes: true, recursive: true })) {
-		if (entry.isFile()) newest = Math.max(newest, fs.statSync(path.join(entry.parentPath, entry.name)).mtimeMs);
+		if (entry.isFile())
+			newest = Math.max(newest, fs.statSync(path.join(entry.parentPath, entry.name)).mtimeMs);
 	}
 	return newest;
 }
@@ -25,7 +26,11 @@ function needsBuild() {
 	if (!fs.existsSync(handler)) return true;
 	const built = fs.statSync(handler).mtimeMs;
 	const sources = ['src', 'drizzle', 'static', 'flows'].map((d) => newestMtime(path.join(root, d)));
-	sources.push(...['package.json', 'svelte.config.js', 'vite.config.ts', 'tailwind.config.ts'].map((f) => fs.statSync(path.join(root, f)).mtimeMs));
+	sources.push(
+		...['package.json', 'svelte.config.js', 'vite.config.ts', 'tailwind.config.ts'].map(
+			(f) => fs.statSync(path.join(root, f)).mtimeMs
+		)
+	);
 	return Math.max(...sources) > built;
 }
 
@@ -68,8 +73,12 @@ const poll = setInterval(async () => {
 		const res = await fetch(`http://127.0.0.1:${port}/api/health`);
 		if (!res.ok) return;
 		clearInterval(poll);
-		console.log(`\nTidemark demo is up at ${origin}  (started in ${((Date.now() - started) / 1000).toFixed(1)} s)`);
-		console.log(`Sign in as lead@tidemark.test, senior@tidemark.test or tech@tidemark.test — password: ${demoPassword}`);
+		console.log(
+			`\nTidemark demo is up at ${origin}  (started in ${((Date.now() - started) / 1000).toFixed(1)} s)`
+		);
+		console.log(
+			`Sign in as lead@tidemark.test, senior@tidemark.test or tech@tidemark.test — password: ${demoPassword}`
+		);
 		console.log('Stop with Ctrl+C.\n');
 	} catch {
 		if (Date.now() - started > 120_000) clearInterval(poll);

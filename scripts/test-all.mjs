@@ -27,7 +27,11 @@ function readJson(file) {
 // 1. vitest: server and component projects.
 const vitestJson = path.join(out, 'vitest.json');
 const vitestStatus = run('unit and component tests (vitest)', 'npx', [
-	'vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${vitestJson}`
+	'vitest',
+	'run',
+	'--reporter=default',
+	'--reporter=json',
+	`--outputFile.json=${vitestJson}`
 ]);
 const v = readJson(vitestJson);
 if (v) {
@@ -40,13 +44,16 @@ if (!v || (vitestStatus !== 0 && v.numFailedTests === 0 && v.numFailedTestSuites
 
 // 2. Browser journeys (Playwright + Debian chromium).
 const pwJson = path.join(out, 'playwright.json');
-const e2eStatus = run('browser journeys (playwright)', 'node', ['scripts/test-e2e.mjs'], { PLAYWRIGHT_JSON_OUTPUT_NAME: pwJson });
+const e2eStatus = run('browser journeys (playwright)', 'node', ['scripts/test-e2e.mjs'], {
+	PLAYWRIGHT_JSON_OUTPUT_NAME: pwJson
+});
 const p = readJson(pwJson);
 if (p?.stats) {
 	totals.passed += p.stats.expected + (p.stats.flaky ?? 0);
 	totals.failed += p.stats.unexpected;
 	totals.skipped += p.stats.skipped;
-	if ((p.errors?.length ?? 0) > 0 && p.stats.unexpected === 0 && e2eStatus !== 0) totals.failed += p.errors.length;
+	if ((p.errors?.length ?? 0) > 0 && p.stats.unexpected === 0 && e2eStatus !== 0)
+		totals.failed += p.errors.length;
 }
 if (!p?.stats || (e2eStatus !== 0 && p.stats.unexpected === 0 && !(p.errors?.length > 0))) broken = true;
 

@@ -12,7 +12,9 @@ import '$lib/server/startup-tasks';
 export const init: ServerInit = async () => {
 	if (building) return;
 	if (!process.env.AUTH_SECRET) {
-		console.error('AUTH_SECRET is not set. Set it to a long random string (see README), or use `npm start` for the demo.');
+		console.error(
+			'AUTH_SECRET is not set. Set it to a long random string (see README), or use `npm start` for the demo.'
+		);
 		process.exit(1);
 	}
 	try {

@@ -18,7 +18,10 @@ describe('ThemeToggle', () => {
 		await userEvent.click(button);
 		expect(document.documentElement).toHaveClass('dark');
 		expect(button).toHaveAttribute('aria-pressed', 'true');
-		expect(fetchMock).toHaveBeenCalledWith('/theme', expect.objectContaining({ method: 'POST', body: '{"theme":"dark"}' }));
+		expect(fetchMock).toHaveBeenCalledWith(
+			'/theme',
+			expect.objectContaining({ method: 'POST', body: '{"theme":"dark"}' })
+		);
 	});
 
 	it('starts pressed when the page was served dark', () => {

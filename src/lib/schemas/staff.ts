@@ -8,7 +8,11 @@ export const passwordField = z
 
 export const staffMember = z.object({
 	id: z.uuid(),
-	name: z.string().trim().min(2, 'Enter the full name (at least 2 characters).').max(80, 'Use at most 80 characters.'),
+	name: z
+		.string()
+		.trim()
+		.min(2, 'Enter the full name (at least 2 characters).')
+		.max(80, 'Use at most 80 characters.'),
 	email: z.email('Enter a valid e-mail address.').max(200),
 	role: z.enum(roles, { error: 'Choose technician, senior or lead.' }),
 	password: passwordField
@@ -20,7 +24,11 @@ export const setDisabled = staffMember.pick({ id: true }).extend({ disabled: z.b
 export const resetPassword = staffMember.pick({ id: true, password: true });
 
 export const changeOwnPassword = z
-	.object({ current: z.string().min(1, 'Enter your current password.'), password: passwordField, confirm: z.string() })
+	.object({
+		current: z.string().min(1, 'Enter your current password.'),
+		password: passwordField,
+		confirm: z.string()
+	})
 	.refine((v) => v.password === v.confirm, { path: ['confirm'], message: 'The two new passwords differ.' });
 
 export const signInForm = z.object({

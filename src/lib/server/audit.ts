@@ -11,5 +11,7 @@ export type AuditInput = {
 
 /** Written inside the caller's transaction, so a change and its audit entry land together or not at all. */
 export async function record(tx: DB | Tx, entry: AuditInput) {
-	await tx.insert(auditLog).values({ ...entry, targetId: entry.targetId ?? null, details: entry.details ?? {} });
+	await tx
+		.insert(auditLog)
+		.values({ ...entry, targetId: entry.targetId ?? null, details: entry.details ?? {} });
 }

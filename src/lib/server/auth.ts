@@ -11,7 +11,11 @@ export class DisabledAccount extends CredentialsSignin {
 
 const credentials = z.object({ email: z.email(), password: z.string().min(1).max(200) });
 
-export const { handle: authHandle, signIn, signOut } = SvelteKitAuth({
+export const {
+	handle: authHandle,
+	signIn,
+	signOut
+} = SvelteKitAuth({
 	// Credentials only work with JWT sessions. The hook re-reads the user on every request,
 	// so a role change or a disabled account takes effect at once despite the token.
 	session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },

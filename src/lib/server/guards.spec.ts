@@ -29,13 +29,15 @@ const opensWithGuard = (line: string) => /^(?:const [^=]+= )?require(?:User|Role
 function handlers(source: string) {
 	const found: { name: string; guarded: boolean }[] = [];
 	// `export const load = async (event) => {`, `export const GET: RequestHandler = async (e) => {`
-	const fn = /export const (load|GET|POST|PUT|PATCH|DELETE)\b[^=]*=\s*async\s*\([^)]*\)\s*=>\s*\{\s*([^\n]*)/g;
+	const fn =
+		/export const (load|GET|POST|PUT|PATCH|DELETE)\b[^=]*=\s*async\s*\([^)]*\)\s*=>\s*\{\s*([^\n]*)/g;
 	for (const m of source.matchAll(fn)) found.push({ name: m[1], guarded: opensWithGuard(m[2]) });
 	// actions: `name: async (event) => {` inside `export const actions`
 	const actionsAt = source.indexOf('export const actions');
 	if (actionsAt >= 0) {
 		const act = /^\t(\w+): async \([^)]*\)\s*=>\s*\{\s*\n?\s*([^\n]*)/gm;
-		for (const m of source.slice(actionsAt).matchAll(act)) found.push({ name: `action ${m[1]}`, guarded: opensWithGuard(m[2]) });
+		for (const m of source.slice(actionsAt).matchAll(act))
+			found.push({ name: `action ${m[1]}`, guarded: opensWithGuard(m[2]) });
 	}
 	return found;
 }
@@ -52,9 +54,14 @@ describe('authorization coverage', () => {
 		const source = fs.readFileSync(path.join(routesDir, file), 'utf8');
 		const found = handlers(source);
 		const exported = (source.match(/export const (load|GET|POST|PUT|PATCH|DELETE|actions)\b/g) ?? []).length;
-		expect(found.length, `no handler recognised in ${file}; write handlers as \`export const X = async (event) => {\``).toBeGreaterThanOrEqual(exported);
+		expect(
+			found.length,
+			`no handler recognised in ${file}; write handlers as \`export const X = async (event) => {\``
+		).toBeGreaterThanOrEqual(exported);
 		const unguarded = found.filter((h) => !h.guarded).map((h) => h.name);
-		expect(unguarded, `${file}: the first statement must be requireUser(...) or requireRole(...)`).toEqual([]);
+		expect(unguarded, `${file}: the first statement must be requireUser(...) or requireRole(...)`).toEqual(
+			[]
+		);
 	});
 
 	it('spots a handler whose first statement is not a guard', () => {
@@ -81,7 +88,9 @@ describe('guards', () => {
 	const lead = { ...tech, role: 'lead' as const };
 
 	it('sends a signed-out visitor of a page to sign-in, keeping where they were going', () => {
-		expect(() => requireUser(event(null))).toThrow(expect.objectContaining({ status: 303, location: '/signin?next=%2Fstaff%3Ftab%3D1' }));
+		expect(() => requireUser(event(null))).toThrow(
+			expect.objectContaining({ status: 303, location: '/signin?next=%2Fstaff%3Ftab%3D1' })
+		);
 	});
 	it('answers 401 to a signed-out API caller', () => {
 		expect(() => requireUser(event(null, '/api/jobs'))).toThrow(expect.objectContaining({ status: 401 }));

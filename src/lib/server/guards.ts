@@ -1,7 +1,7 @@
 import { error, redirect, type RequestEvent } from '@sveltejs/kit';
 import { hasRole, type Role } from '$lib/roles';
 
-type Guarded = Pick<RequestEvent, 'locals' | 'url' | 'route'>;
+type Guarded = Pick<RequestEvent, 'locals' | 'url'> & { route: { id: string | null } };
 
 function isApi(event: Guarded) {
 	return event.route.id?.startsWith('/api') ?? event.url.pathname.startsWith('/api');

@@ -18,7 +18,7 @@ describe('sign-in rate limit', () => {
 		expect(await signInBlockedFor('fresh@x.test', '192.0.2.8')).toBe(0);
 	});
 
-	it('forgets an e-mail\'s failures after a successful sign-in', async () => {
+	it("forgets an e-mail's failures after a successful sign-in", async () => {
 		for (let i = 0; i < 10; i++) await recordFailedSignIn('b@x.test', `198.51.100.${i}`);
 		await clearFailedSignIns('b@x.test');
 		expect(await signInBlockedFor('b@x.test', '198.51.100.200')).toBe(0);

@@ -4,8 +4,16 @@ const WINDOW_SECONDS = 15 * 60;
 const MAX_FAILURES = 10;
 
 // Failed sign-ins, counted per e-mail and per client address. In memory: one shop, one process.
-const byEmail = new RateLimiterMemory({ keyPrefix: 'signin-email', points: MAX_FAILURES, duration: WINDOW_SECONDS });
-const byAddress = new RateLimiterMemory({ keyPrefix: 'signin-ip', points: MAX_FAILURES, duration: WINDOW_SECONDS });
+const byEmail = new RateLimiterMemory({
+	keyPrefix: 'signin-email',
+	points: MAX_FAILURES,
+	duration: WINDOW_SECONDS
+});
+const byAddress = new RateLimiterMemory({
+	keyPrefix: 'signin-ip',
+	points: MAX_FAILURES,
+	duration: WINDOW_SECONDS
+});
 
 /** Seconds to wait before another attempt, or 0 when the caller may try. */
 export async function signInBlockedFor(email: string, address: string) {

@@ -9,7 +9,12 @@ import * as staff from './queries';
 let leadId: string;
 
 beforeAll(async () => {
-	const lead = await staff.create(null, { name: 'Ada Quill', email: 'Ada@Shop.test', role: 'lead', password: 'first-lead-pw' });
+	const lead = await staff.create(null, {
+		name: 'Ada Quill',
+		email: 'Ada@Shop.test',
+		role: 'lead',
+		password: 'first-lead-pw'
+	});
 	leadId = lead.id;
 });
 
@@ -28,7 +33,12 @@ describe('staff queries', () => {
 		const db = await getDb();
 		const before = await db.select().from(auditLog);
 		await expect(
-			staff.create(leadId, { name: 'Copy', email: 'ADA@shop.test', role: 'technician', password: 'another-password' })
+			staff.create(leadId, {
+				name: 'Copy',
+				email: 'ADA@shop.test',
+				role: 'technician',
+				password: 'another-password'
+			})
 		).rejects.toMatchObject({ field: 'email' });
 		expect(await db.select().from(auditLog)).toHaveLength(before.length);
 	});
@@ -40,7 +50,12 @@ describe('staff queries', () => {
 	});
 
 	it('allows demoting a lead once another active lead exists, and audits each change', async () => {
-		const second = await staff.create(leadId, { name: 'Bo Reed', email: 'bo@shop.test', role: 'technician', password: 'bo-password-1' });
+		const second = await staff.create(leadId, {
+			name: 'Bo Reed',
+			email: 'bo@shop.test',
+			role: 'technician',
+			password: 'bo-password-1'
+		});
 		await staff.changeRole(leadId, second.id, 'lead');
 		await staff.changeRole(second.id, leadId, 'senior');
 		expect((await staff.findById(leadId))!.role).toBe('senior');
@@ -54,7 +69,13 @@ describe('staff queries', () => {
 	});
 
 	it('disables and enables a member, and a reset sets must-change', async () => {
-		const tech = await staff.create(leadId, { name: 'Cy Moss', email: 'cy@shop.test', role: 'technician', password: 'cy-password-1', mustChangePassword: false });
+		const tech = await staff.create(leadId, {
+			name: 'Cy Moss',
+			email: 'cy@shop.test',
+			role: 'technician',
+			password: 'cy-password-1',
+			mustChangePassword: false
+		});
 		expect((await staff.setDisabled(leadId, tech.id, true)).disabled).toBe(true);
 		expect((await staff.setDisabled(leadId, tech.id, false)).disabled).toBe(false);
 		await staff.resetPassword(leadId, tech.id, 'temporary-pw-9');
@@ -62,14 +83,23 @@ describe('staff queries', () => {
 		expect(full!.mustChangePassword).toBe(true);
 		expect(await verifyPassword(full!.passwordHash, 'temporary-pw-9')).toBe(true);
 		const actions = (await staff.auditFor('user', tech.id)).map((e) => e.action);
-		expect(actions).toEqual(expect.arrayContaining(['staff.create', 'staff.disable', 'staff.enable', 'staff.reset-password']));
+		expect(actions).toEqual(
+			expect.arrayContaining(['staff.create', 'staff.disable', 'staff.enable', 'staff.reset-password'])
+		);
 	});
 
 	it('rolls back the change when its audit entry cannot be written', async () => {
 		const db = await getDb();
-		const tech = await staff.create(leadId, { name: 'Di Fern', email: 'di@shop.test', role: 'technician', password: 'di-password-1' });
+		const tech = await staff.create(leadId, {
+			name: 'Di Fern',
+			email: 'di@shop.test',
+			role: 'technician',
+			password: 'di-password-1'
+		});
 		// An actor id that is no user breaks the audit row's foreign key inside the transaction.
-		await expect(staff.changeRole('00000000-0000-4000-8000-000000000000', tech.id, 'senior')).rejects.toThrow();
+		await expect(
+			staff.changeRole('00000000-0000-4000-8000-000000000000', tech.id, 'senior')
+		).rejects.toThrow();
 		const [row] = await db.select().from(users).where(eq(users.id, tech.id));
 		expect(row.role).toBe('technician');
 	});

@@ -30,7 +30,10 @@ export class StaffRuleError extends Error {
 
 export async function findByEmail(email: string) {
 	const db = await getDb();
-	const [user] = await db.select().from(users).where(eq(sql`lower(${users.email})`, email.trim().toLowerCase()));
+	const [user] = await db
+		.select()
+		.from(users)
+		.where(eq(sql`lower(${users.email})`, email.trim().toLowerCase()));
 	return user;
 }
 

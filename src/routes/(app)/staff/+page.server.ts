@@ -42,7 +42,10 @@ export const actions: Actions = {
 		try {
 			const created = await staff.create(lead.id, form.data);
 			form.data.password = '';
-			return message(form, `${created.name} was added. Give them the temporary password; they choose their own at first sign-in.`);
+			return message(
+				form,
+				`${created.name} was added. Give them the temporary password; they choose their own at first sign-in.`
+			);
 		} catch (e) {
 			if (e instanceof staff.StaffRuleError) return setError(form, e.field as 'email', e.message);
 			throw e;
@@ -68,7 +71,13 @@ export const actions: Actions = {
 		if (!parsed.success) return rowFailure(id, 400, problem);
 		try {
 			const updated = await staff.setDisabled(lead.id, parsed.data.id, parsed.data.disabled);
-			return { row: { id: updated.id, message: updated.disabled ? 'Disabled: they can no longer sign in.' : 'Enabled again.', ok: true } };
+			return {
+				row: {
+					id: updated.id,
+					message: updated.disabled ? 'Disabled: they can no longer sign in.' : 'Enabled again.',
+					ok: true
+				}
+			};
 		} catch (e) {
 			if (e instanceof staff.StaffRuleError) return rowFailure(parsed.data.id, 400, e.message);
 			throw e;
@@ -81,7 +90,13 @@ export const actions: Actions = {
 		if (!parsed.success) return rowFailure(id, 400, `Temporary password: ${problem}`);
 		try {
 			await staff.resetPassword(lead.id, parsed.data.id, parsed.data.password);
-			return { row: { id: parsed.data.id, message: 'Password reset. They choose a new one at their next sign-in.', ok: true } };
+			return {
+				row: {
+					id: parsed.data.id,
+					message: 'Password reset. They choose a new one at their next sign-in.',
+					ok: true
+				}
+			};
 		} catch (e) {
 			if (e instanceof staff.StaffRuleError) return rowFailure(parsed.data.id, 400, e.message);
 			throw e;

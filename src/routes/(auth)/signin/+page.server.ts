@@ -26,9 +26,13 @@ export const actions: Actions = {
 
 		const wait = await signInBlockedFor(email, address);
 		if (wait > 0) {
-			return message(withoutPassword(form), `Too many failed sign-ins. Try again in ${Math.ceil(wait / 60)} minutes.`, {
-				status: 429
-			});
+			return message(
+				withoutPassword(form),
+				`Too many failed sign-ins. Try again in ${Math.ceil(wait / 60)} minutes.`,
+				{
+					status: 429
+				}
+			);
 		}
 
 		const body = new URLSearchParams({ email, password: form.data.password, redirectTo: next });
@@ -53,7 +57,9 @@ export const actions: Actions = {
 			}
 			if (e instanceof AuthError) {
 				await recordFailedSignIn(email, address);
-				return message(withoutPassword(form), 'That e-mail and password do not match an account.', { status: 400 });
+				return message(withoutPassword(form), 'That e-mail and password do not match an account.', {
+					status: 400
+				});
 			}
 			throw e;
 		}
@@ -67,7 +73,15 @@ function withoutPassword<T extends { data: { password: string } }>(form: T) {
 
 function forwardedHeaders(request: Request) {
 	const out: Record<string, string> = {};
-	for (const name of ['cookie', 'host', 'origin', 'referer', 'x-forwarded-for', 'x-forwarded-proto', 'x-forwarded-host']) {
+	for (const name of [
+		'cookie',
+		'host',
+		'origin',
+		'referer',
+		'x-forwarded-for',
+		'x-forwarded-proto',
+		'x-forwarded-host'
+	]) {
 		const value = request.headers.get(name);
 		if (value) out[name] = value;
 	}

@@ -7,6 +7,13 @@ export const load: PageServerLoad = async () => redirect(303, '/');
 
 export const actions: Actions = {
 	default: async (event) => {
-		await signOut({ ...event, request: new Request(event.request.url, { method: 'POST', headers: event.request.headers, body: new URLSearchParams({ redirectTo: '/signin' }) }) });
+		await signOut({
+			...event,
+			request: new Request(event.request.url, {
+				method: 'POST',
+				headers: event.request.headers,
+				body: new URLSearchParams({ redirectTo: '/signin' })
+			})
+		});
 	}
 };

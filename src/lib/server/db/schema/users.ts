@@ -1,5 +1,16 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, index, jsonb, pgTable, text, timestamp, uniqueIndex, uuid, bigserial } from 'drizzle-orm/pg-core';
+import {
+	boolean,
+	check,
+	index,
+	jsonb,
+	pgTable,
+	text,
+	timestamp,
+	uniqueIndex,
+	uuid,
+	bigserial
+} from 'drizzle-orm/pg-core';
 import { roles } from '../../../roles';
 
 export const roleEnumValues = roles;
