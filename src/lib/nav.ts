@@ -1,6 +1,6 @@
 import { hasRole, type Role } from '$lib/roles';
 
-export type NavItem = { href: string; label: string; role: Role };
+export type NavItem = { href: string; label: string; role: Role; description?: string };
 
 /**
  * The app's sections, each with the least role that may open it. The shell shows only what the
@@ -9,7 +9,12 @@ export type NavItem = { href: string; label: string; role: Role };
  */
 export const navItems: NavItem[] = [
 	{ href: '/', label: 'Today', role: 'technician' },
-	{ href: '/staff', label: 'Staff', role: 'lead' }
+	{
+		href: '/staff',
+		label: 'Staff',
+		role: 'lead',
+		description: 'Accounts, roles and passwords of the shop’s staff.'
+	}
 ];
 
 export function navFor(role: Role) {

@@ -97,8 +97,13 @@ test('the lead manages staff: add, bad input, role, disable, last lead kept', as
 	// Every change is in the audit list.
 	await page.reload();
 	const audit = page.getByRole('region', { name: 'Recent changes' });
-	for (const action of ['staff.create', 'staff.role', 'staff.disable', 'staff.enable']) {
-		await expect(audit.getByText(action).first()).toBeVisible();
+	for (const words of [
+		'added a staff member',
+		'changed a role',
+		'disabled an account',
+		'enabled an account'
+	]) {
+		await expect(audit.getByText(words).first()).toBeVisible();
 	}
 });
 
