@@ -4,3 +4,4 @@ export * from './settings';
 export * from './flows';
 export * from './mail';
 export * from './payments';
+export * from "./jobs";

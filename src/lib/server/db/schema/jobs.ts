@@ -1,0 +1,128 @@
+import { sql } from 'drizzle-orm';
+import {
+	bigserial,
+	boolean,
+	check,
+	index,
+	integer,
+	jsonb,
+	pgEnum,
+	pgSequence,
+	pgTable,
+	real,
+	text,
+	timestamp,
+	uniqueIndex,
+	uuid
+} from 'drizzle-orm/pg-core';
+// Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { liquidKinds, type ExposureAssessment } from '../../../domain/exposure';
+import { jobStatuses } from '../../../domain/jobStatus';
+import { users } from './users';
+
+/** Reference list behind the maker/model suggestions at intake; the fields stay free text. */
+export const deviceModels = pgTable(
+	'device_models',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		maker: text('maker').notNull(),
+		model: text('model').notNull()
+	},
+	(t) => [uniqueIndex('device_models_maker_model_idx').on(sql`lower(${t.maker})`, sql`lower(${t.model})`)]
+);
+
+export const customers = pgTable(
+	'customers',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		name: text('name').notNull(),
+		email: text('email'),
+		phone: text('phone'),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [check('customers_contact_check', sql`${t.email} is not null or ${t.phone} is not null`)]
+);
+
+export const liquidKind = pgEnum('liquid_kind', liquidKinds);
+export const passcodeStatuses = ['given', 'withheld', 'not-needed'] as const;
+/** Whether the customer gave the passcode. The passcode itself is never stored anywhere. */
+export const passcodeStatus = pgEnum('passcode_status', passcodeStatuses);
+
+/** The human job number (TM-000123) comes from this sequence; the uuid stays the key. */
+export const jobNumberSeq = pgSequence('job_number_seq', { startWith: 1, increment: 1 });
+
+export type StoredRating = { code: string | null; declaredDepthM?: number; declaredMinutes?: number };
+
+export const jobs = pgTable(
+	'jobs',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		number: integer('number')
+			.notNull()
+			.default(sql`nextval('job_number_seq')`),
+		customerId: uuid('customer_id')
+			.notNull()
+			.references(() => customers.id),
+		maker: text('maker').notNull(),
+		model: text('model').notNull(),
+		/** 15 digits, separators removed. */
+		imei: text('imei'),
+		/** Upper case, spaces removed. */
+		serial: text('serial'),
+		symptoms: text('symptoms')
+			.array()
+			.notNull()
+			.default(sql`'{}'::text[]`),
+		liquid: liquidKind('liquid').notNull(),
+		exposedAt: timestamp('exposed_at', { withTimezone: true }),
+		submerged: boolean('submerged').notNull(),
+		depthM: real('depth_m'),
+		minutes: real('minutes'),
+		rating: jsonb('rating').$type<StoredRating>().notNull(),
+		/** assessExposure's result at intake, kept so the job shows what the technician was told. */
+		exposureAssessment: jsonb('exposure_assessment').$type<ExposureAssessment>().notNull(),
+		dataFirst: boolean('data_first').notNull().default(false),
+		passcodeStatus: passcodeStatus('passcode_status').notNull(),
+		consentToOpen: boolean('consent_to_open').notNull().default(false),
+		consentAt: timestamp('consent_at', { withTimezone: true }),
+		notes: text('notes').notNull().default(''),
+		status: text('status', { enum: jobStatuses }).notNull().default('received'),
+		technicianId: uuid('technician_id').references(() => users.id),
+		createdBy: uuid('created_by').references(() => users.id),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		uniqueIndex('jobs_number_idx').on(t.number),
+		index('jobs_status_idx').on(t.status),
+		index('jobs_technician_idx').on(t.technicianId),
+		index('jobs_created_at_idx').on(t.createdAt),
+		index('jobs_imei_idx').on(t.imei),
+		check('jobs_identifier_check', sql`${t.imei} is not null or ${t.serial} is not null`),
+		check('jobs_imei_format_check', sql`${t.imei} is null or ${t.imei} ~ '^[0-9]{15}$'`),
+		check('jobs_status_check', sql.raw(`status in (${jobStatuses.map((s) => `'${s}'`).join(', ')})`)),
+		check('jobs_consent_check', sql`not ${t.consentToOpen} or ${t.consentAt} is not null`)
+	]
+);
+
+/** Status history: one row per change, the first with `from` null (intake). */
+export const jobEvents = pgTable(
+	'job_events',
+	{
+		id: bigserial('id', { mode: 'number' }).primaryKey(),
+		jobId: uuid('job_id')
+			.notNull()
+			.references(() => jobs.id, { onDelete: 'cascade' }),
+		fromStatus: text('from_status', { enum: jobStatuses }),
+		toStatus: text('to_status', { enum: jobStatuses }).notNull(),
+		by: uuid('by').references(() => users.id),
+		at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
+		note: text('note').notNull().default('')
+	},
+	(t) => [index('job_events_job_idx').on(t.jobId, t.at)]
+);
+
+export type DeviceModel = typeof deviceModels.$inferSelect;
+export type Customer = typeof customers.$inferSelect;
+export type Job = typeof jobs.$inferSelect;
+export type JobEvent = typeof jobEvents.$inferSelect;
