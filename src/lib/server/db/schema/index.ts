@@ -5,3 +5,4 @@ export * from './flows';
 export * from './mail';
 export * from './payments';
 export * from "./jobs";
+export * from "./runs";

@@ -1,0 +1,99 @@
+import { sql } from 'drizzle-orm';
+import {
+	bigserial,
+	boolean,
+	check,
+	index,
+	integer,
+	jsonb,
+	pgTable,
+	text,
+	timestamp,
+	uniqueIndex,
+	uuid
+} from 'drizzle-orm/pg-core';
+// Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { users } from './users';
+import { jobs } from './jobs';
+import { flowVersions } from './flows';
+
+export const runStatuses = ['in-progress', 'completed', 'abandoned'] as const;
+export type RunStatus = (typeof runStatuses)[number];
+
+/**
+ * One walk of a technician through one published flow version for one job. The version is pinned
+ * at start: publishing a newer version never changes a run under way. `snapshot` is the xstate
+ * persisted snapshot and is the authority on where the run stands.
+ */
+export const runs = pgTable(
+	'runs',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		jobId: uuid('job_id')
+			.notNull()
+			.references(() => jobs.id),
+		flowVersionId: uuid('flow_version_id')
+			.notNull()
+			.references(() => flowVersions.id),
+		technicianId: uuid('technician_id')
+			.notNull()
+			.references(() => users.id),
+		status: text('status', { enum: runStatuses }).notNull().default('in-progress'),
+		snapshot: jsonb('snapshot').$type<Record<string, unknown>>().notNull(),
+		currentStep: text('current_step').notNull(),
+		verdictCode: text('verdict_code'),
+		verdictStep: text('verdict_step'),
+		/** True once an answer recorded `data-reachable`, false on `data-unreachable`, null while unknown. */
+		dataReachable: boolean('data_reachable'),
+		abandonReason: text('abandon_reason'),
+		startedAt: timestamp('started_at', { withTimezone: true }).notNull().defaultNow(),
+		finishedAt: timestamp('finished_at', { withTimezone: true }),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		index('runs_job_idx').on(t.jobId, t.startedAt),
+		index('runs_flow_version_idx').on(t.flowVersionId),
+		check('runs_status_check', sql`${t.status} in ('in-progress', 'completed', 'abandoned')`),
+		check('runs_verdict_check', sql`(${t.status} = 'completed') = (${t.verdictCode} is not null)`)
+	]
+);
+
+export type StepAnswer =
+	| { outcome: { index: number; label: string } }
+	| { value: number; unit: string; range: { index: number; label: string | null } }
+	| { back: { revised: number } };
+
+/**
+ * Every event a run accepted, in order. A BACK does not delete anything: it sets `superseded_at`
+ * on the answer it revises, so the trail of first and revised answers stays readable.
+ */
+export const runSteps = pgTable(
+	'run_steps',
+	{
+		id: bigserial('id', { mode: 'number' }).primaryKey(),
+		runId: uuid('run_id')
+			.notNull()
+			.references(() => runs.id, { onDelete: 'cascade' }),
+		seq: integer('seq').notNull(),
+		stepId: text('step_id').notNull(),
+		/** symptom | test | measure, or `back` for a revision. */
+		kind: text('kind').notNull(),
+		answer: jsonb('answer').$type<StepAnswer>().notNull(),
+		notes: text('notes').notNull().default(''),
+		actorId: uuid('actor_id').references(() => users.id),
+		/** When the technician reached the step (the previous answer, or the run's start). */
+		enteredAt: timestamp('entered_at', { withTimezone: true }).notNull(),
+		answeredAt: timestamp('answered_at', { withTimezone: true }).notNull().defaultNow(),
+		supersededAt: timestamp('superseded_at', { withTimezone: true }),
+		idempotencyKey: text('idempotency_key').notNull(),
+		/** The response sent for this event, returned unchanged when the same key arrives again. */
+		result: jsonb('result').$type<Record<string, unknown>>().notNull()
+	},
+	(t) => [
+		uniqueIndex('run_steps_run_seq_idx').on(t.runId, t.seq),
+		uniqueIndex('run_steps_run_key_idx').on(t.runId, t.idempotencyKey)
+	]
+);
+
+export type Run = typeof runs.$inferSelect;
+export type RunStep = typeof runSteps.$inferSelect;
