@@ -1,7 +1,33 @@
 // Start-up tasks, registered in the order they run. Add a line here for a new one.
 import { onStartup } from '$lib/server/startup';
 import { seedDemo } from '$lib/server/demo/seed';
+import * as flowLibrary from '$lib/server/flows/queries';
+import { startFakes, stopFakes } from '$lib/server/fakes';
+import { smtpUrl } from '$lib/server/mail/config';
+import { startMailWorker } from '$lib/server/mail/worker';
 
 onStartup('demo seed', async () => {
 	if (process.env.TIDEMARK_DEMO === '1') await seedDemo();
+});
+
+// Every start, demo or not: new or changed flows/*.flow.yaml become published versions.
+onStartup('flow import', async () => {
+	await flowLibrary.importFromFiles();
+});
+
+// Demo and tests (TIDEMARK_DEMO=1 or TIDEMARK_FAKES=1): local mail and payment services, each only
+// when its real setting (SMTP_URL, STRIPE_SECRET_KEY) is absent.
+onStartup('local fakes', async () => {
+	await startFakes();
+	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void stopFakes());
+});
+
+// Sends queued mail in the background; without an SMTP server mail waits in the queue.
+onStartup('mail worker', async () => {
+	if (!smtpUrl()) console.warn('[mail] SMTP_URL is not set: e-mail stays queued until it is (see the Outbox).');
+	if (process.env.STRIPE_SECRET_KEY && !process.env.STRIPE_WEBHOOK_SECRET) {
+		console.warn('[payments] STRIPE_WEBHOOK_SECRET is not set: payment confirmations will be refused.');
+	}
+	const worker = startMailWorker();
+	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void worker.stop());
 });

@@ -1,0 +1,270 @@
+/**
+ * Job intake and job changes. One flat shape serves the intake form (superforms) and the JSON API,
+ * so the browser, the form action and POST /api/jobs refuse the same things with the same words.
+ * Isomorphic: no server imports.
+ */
+import { z } from 'zod';
+import {
+	assessExposure,
+	liquidKinds,
+	parseIpCode,
+	type DeviceRating,
+	type Exposure
+} from '$lib/domain/exposure';
+import { isValidImei, normaliseImei } from '$lib/domain/identifiers';
+import { jobStatuses } from '$lib/domain/jobStatus';
+
+export const passcodeStatuses = ['given', 'withheld', 'not-needed'] as const;
+export type PasscodeStatus = (typeof passcodeStatuses)[number];
+
+export const passcodeLabels: Record<PasscodeStatus, string> = {
+	given: 'Given by the customer (kept by the customer’s paperwork, not here)',
+	withheld: 'Withheld by the customer',
+	'not-needed': 'Not needed'
+};
+
+export const liquidLabels: Record<(typeof liquidKinds)[number], string> = {
+	fresh: 'Fresh water',
+	salt: 'Salt water',
+	chlorinated: 'Chlorinated (pool)',
+	sugary: 'Sugary drink',
+	other: 'Other liquid',
+	unknown: 'Unknown'
+};
+
+/** "no-power" → "No power": symptom tags are kebab-case ids from the flows. */
+export function symptomLabel(tag: string) {
+	const words = tag.replace(/-/g, ' ');
+	return words.charAt(0).toUpperCase() + words.slice(1);
+}
+
+/** The job number people say and write: TM-000123. */
+export function formatJobNumber(n: number) {
+	return `TM-${String(n).padStart(6, '0')}`;
+}
+
+/** Serial numbers are read off trays and labels: compare them without spaces or dashes, upper case. */
+export function normaliseSerial(value: string) {
+	return value.replace(/[\s-]/g, '').toUpperCase();
+}
+
+const PHONE = /^\+?[0-9 ()./-]{6,30}$/;
+/** A date-time with a zone (API) or a browser's datetime-local value (the form sends its offset too). */
+const DATE_TIME = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,3})?)?(Z|[+-]\d{2}:\d{2})?$/;
+
+const optionalNumber = (max: number, what: string) =>
+	z
+		.number({ error: `Enter ${what} as a number.` })
+		.nonnegative(`${what[0].toUpperCase()}${what.slice(1)} cannot be negative.`)
+		.max(max, `That is more than ${max}; check the ${what}.`)
+		.optional();
+
+const intakeShape = {
+	customerName: z
+		.string()
+		.trim()
+		.min(2, 'Enter the customer’s name (at least 2 characters).')
+		.max(120, 'Use at most 120 characters.'),
+	customerEmail: z
+		.string()
+		.trim()
+		.max(200)
+		.refine(
+			(v) => v === '' || z.email().safeParse(v).success,
+			'Enter a valid e-mail address, or leave it empty.'
+		)
+		.default(''),
+	customerPhone: z
+		.string()
+		.trim()
+		.refine(
+			(v) => v === '' || PHONE.test(v),
+			'Enter a phone number with digits (spaces, +, - and brackets allowed).'
+		)
+		.default(''),
+	maker: z.string().trim().min(1, 'Enter the maker.').max(80, 'Use at most 80 characters.'),
+	model: z.string().trim().min(1, 'Enter the model.').max(120, 'Use at most 120 characters.'),
+	imei: z.string().trim().max(40, 'An IMEI has 15 digits.').default(''),
+	serial: z.string().trim().max(40, 'Use at most 40 characters.').default(''),
+	symptoms: z.array(z.string().max(60)).max(20, 'Choose at most 20 symptoms.').default([]),
+	liquid: z.enum(liquidKinds, { error: 'Choose the liquid (or “Unknown”).' }),
+	/** '' when the customer does not know when it happened. */
+	exposedAt: z
+		.string()
+		.trim()
+		.refine(
+			(v) => v === '' || (DATE_TIME.test(v) && !Number.isNaN(Date.parse(v))),
+			'Enter a date and time, or leave it empty.'
+		)
+		.default(''),
+	/** The browser's Date#getTimezoneOffset() for a zone-less exposedAt; 0 (UTC) when absent. */
+	tzOffsetMin: z.number().int().min(-840).max(840).default(0),
+	submerged: z.boolean().default(false),
+	depthM: optionalNumber(1000, 'depth in metres'),
+	minutes: optionalNumber(100_000, 'time in minutes'),
+	ratingCode: z.string().trim().max(40).default(''),
+	declaredDepthM: optionalNumber(1000, 'declared depth'),
+	declaredMinutes: optionalNumber(100_000, 'declared minutes'),
+	dataFirst: z.boolean().default(false),
+	passcodeStatus: z.enum(passcodeStatuses, { error: 'Choose whether the customer gave the passcode.' }),
+	consentToOpen: z.boolean().default(false),
+	notes: z.string().trim().max(4000, 'Keep notes under 4000 characters.').default('')
+};
+
+type IntakeShape = z.infer<z.ZodObject<typeof intakeShape>>;
+
+/** The rating and exposure as the domain module wants them. */
+export function ratingOf(
+	v: Pick<IntakeShape, 'ratingCode' | 'declaredDepthM' | 'declaredMinutes'>
+): DeviceRating {
+	const ip = parseIpCode(v.ratingCode);
+	const code = ip === null ? null : ip === 'invalid' ? v.ratingCode : ip.code;
+	// Declared figures only mean something for IP68; drop stale ones left from an earlier entry.
+	if (ip === null || ip === 'invalid' || ip.immersion !== 8) return { code };
+	return {
+		code,
+		declaredDepthM: v.declaredDepthM || undefined,
+		declaredMinutes: v.declaredMinutes || undefined
+	};
+}
+
+export function exposureOf(v: Pick<IntakeShape, 'liquid' | 'submerged' | 'depthM' | 'minutes'>): Exposure {
+	return v.submerged
+		? { liquid: v.liquid, submerged: true, depthM: v.depthM, minutes: v.minutes }
+		: { liquid: v.liquid, submerged: false };
+}
+
+/** The exposure time as an instant, or null when unknown. */
+export function exposedAtOf(v: Pick<IntakeShape, 'exposedAt' | 'tzOffsetMin'>): Date | null {
+	if (!v.exposedAt) return null;
+	if (/(Z|[+-]\d{2}:\d{2})$/.test(v.exposedAt)) return new Date(v.exposedAt);
+	// A datetime-local value is wall-clock time in the browser's zone; getTimezoneOffset is UTC − local.
+	return new Date(Date.parse(`${v.exposedAt}Z`) + v.tzOffsetMin * 60_000);
+}
+
+/**
+ * The intake schema. `symptomVocabulary` is the set of tags the published flows use; pass it on the
+ * server so a tag no flow knows is refused. Without it any kebab-case tag passes (client preview).
+ */
+export function makeJobIntake(symptomVocabulary?: readonly string[]) {
+	const known = symptomVocabulary ? new Set(symptomVocabulary) : null;
+	return z.object(intakeShape).superRefine((v, ctx) => {
+		if (!v.customerEmail && !v.customerPhone) {
+			const message = 'Give an e-mail address or a phone number (or both).';
+			ctx.addIssue({ code: 'custom', path: ['customerEmail'], message });
+			ctx.addIssue({ code: 'custom', path: ['customerPhone'], message });
+		}
+		if (!v.imei && !v.serial) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['imei'],
+				message: 'Enter the IMEI, or the serial number if the IMEI cannot be read.'
+			});
+		}
+		if (v.imei) {
+			const digits = normaliseImei(v.imei);
+			if (!/^\d{15}$/.test(digits)) {
+				const message = /^\d+$/.test(digits)
+					? `An IMEI has exactly 15 digits; this has ${digits.length}.`
+					: 'An IMEI has only digits (spaces and dashes are fine).';
+				ctx.addIssue({ code: 'custom', path: ['imei'], message });
+			} else if (!isValidImei(digits)) {
+				ctx.addIssue({
+					code: 'custom',
+					path: ['imei'],
+					message:
+						'The check digit (the last digit) does not match: a digit was probably misread. Read the IMEI again.'
+				});
+			}
+		}
+		for (const tag of v.symptoms) {
+			if (!/^[a-z0-9]+(-[a-z0-9]+)*$/.test(tag) || (known && !known.has(tag))) {
+				ctx.addIssue({
+					code: 'custom',
+					path: ['symptoms'],
+					message: `“${tag}” is not a symptom any flow knows.`
+				});
+			}
+		}
+		if (v.submerged) {
+			if (v.depthM === undefined)
+				ctx.addIssue({
+					code: 'custom',
+					path: ['depthM'],
+					message: 'Submerged: enter about how deep (metres; a best guess is fine).'
+				});
+			if (v.minutes === undefined)
+				ctx.addIssue({
+					code: 'custom',
+					path: ['minutes'],
+					message: 'Submerged: enter about how long (minutes; a best guess is fine).'
+				});
+		}
+		const ip = parseIpCode(v.ratingCode);
+		if (ip === 'invalid') {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['ratingCode'],
+				message: 'Not an IP code: write it like IP67, IPX7 or IP65/IP68, or leave it empty for none.'
+			});
+		} else if (ip?.immersion === 8 && (v.declaredDepthM || v.declaredMinutes)) {
+			const result = assessExposure(ratingOf(v), { liquid: 'fresh', submerged: false });
+			if (result.status === 'invalid-rating') {
+				ctx.addIssue({ code: 'custom', path: ['declaredDepthM'], message: result.explanation });
+			}
+		}
+		const at = exposedAtOf(v);
+		if (at && at.getTime() > Date.now() + 5 * 60_000) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['exposedAt'],
+				message: 'That is in the future; enter when it happened.'
+			});
+		}
+	});
+}
+
+export const jobIntake = makeJobIntake();
+export type JobIntake = z.infer<typeof jobIntake>;
+
+export const sortColumns = ['number', 'customer', 'model', 'status', 'createdAt', 'updatedAt'] as const;
+export type JobSortColumn = (typeof sortColumns)[number];
+
+/** GET /api/jobs and the /jobs page URL: every part optional, so a bare URL lists the newest jobs. */
+export const jobListQuery = z.object({
+	q: z.string().trim().max(100).default(''),
+	status: z.enum(jobStatuses).optional().catch(undefined),
+	technician: z
+		.union([z.uuid(), z.literal('none')])
+		.optional()
+		.catch(undefined),
+	sort: z.enum(sortColumns).default('createdAt').catch('createdAt'),
+	dir: z.enum(['asc', 'desc']).default('desc').catch('desc'),
+	page: z.coerce.number().int().min(1).max(100_000).default(1).catch(1),
+	size: z.coerce.number().int().min(5).max(100).default(20).catch(20)
+});
+export type JobListQuery = z.infer<typeof jobListQuery>;
+
+export function listQueryFrom(params: URLSearchParams): JobListQuery {
+	return jobListQuery.parse(Object.fromEntries(params));
+}
+
+/** The URL search string for a list query, leaving out defaults so links stay short. */
+export function listQueryString(query: Partial<JobListQuery>): string {
+	const defaults = jobListQuery.parse({});
+	const params = new URLSearchParams();
+	for (const key of ['q', 'status', 'technician', 'sort', 'dir', 'page', 'size'] as const) {
+		const value = query[key];
+		if (value !== undefined && value !== '' && value !== defaults[key]) params.set(key, String(value));
+	}
+	const s = params.toString();
+	return s ? `?${s}` : '';
+}
+
+/** PATCH /api/jobs/:id — one change at a time. */
+export const jobPatch = z.union([
+	z.object({ status: z.enum(jobStatuses), note: z.string().trim().max(1000).default('') }).strict(),
+	z.object({ technicianId: z.uuid().nullable() }).strict(),
+	z.object({ consentToOpen: z.literal(true) }).strict()
+]);
+export type JobPatch = z.infer<typeof jobPatch>;
