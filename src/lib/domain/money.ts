@@ -83,6 +83,18 @@ export function quoteTotals(lines: readonly QuoteLine[], settings: TaxSettings):
 	return { lines: priced, netMinor: Number(net), taxMinor: Number(tax), grossMinor: Number(gross) };
 }
 
+/** Building a formatter costs ~100× formatting with one, and a report formats many amounts. */
+const formats = new Map<string, Intl.NumberFormat>();
+function currencyFormat(currency: string, locale: string | undefined): Intl.NumberFormat {
+	const key = `${locale ?? ''}|${currency}`;
+	let format = formats.get(key);
+	if (!format) {
+		format = new Intl.NumberFormat(locale, { style: 'currency', currency });
+		formats.set(key, format);
+	}
+	return format;
+}
+
 /**
  * Formats minor units for people, e.g. formatMoney(123456, 'EUR', 'en-GB') → "€1,234.56".
  * The currency's own number of decimals comes from Intl (JPY 0, EUR 2, BHD 3), and the amount is
@@ -92,7 +104,7 @@ export function quoteTotals(lines: readonly QuoteLine[], settings: TaxSettings):
 export function formatMoney(minor: number, currency: string, locale?: string): string {
 	if (!Number.isSafeInteger(minor))
 		throw new RangeError(`formatMoney: ${minor} is not a whole number of minor units`);
-	const format = new Intl.NumberFormat(locale, { style: 'currency', currency });
+	const format = currencyFormat(currency, locale);
 	const digits = format.resolvedOptions().maximumFractionDigits ?? 2;
 	const sign = minor < 0 ? '-' : '';
 	const padded = String(Math.abs(minor)).padStart(digits + 1, '0');

@@ -101,12 +101,13 @@ export function wilsonInterval(
 	};
 }
 
-function sortedCopy(values: readonly number[], fn: string): number[] {
+/** A sorted copy; a Float64Array sorts numerically by itself and several times faster than an array. */
+function sortedCopy(values: readonly number[], fn: string): Float64Array {
 	if (values.length === 0) throw new RangeError(`${fn}: needs at least one value`);
 	for (const value of values) {
 		if (!Number.isFinite(value)) throw new RangeError(`${fn}: values must be finite numbers (got ${value})`);
 	}
-	return [...values].sort((a, b) => a - b);
+	return Float64Array.from(values).sort();
 }
 
 /**
