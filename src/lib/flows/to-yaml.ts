@@ -3,7 +3,7 @@
  * order, steps in their given order, short lists and outcomes inline, long text as block scalars.
  * parseFlow(toFlowYaml(d)) gives back d. Isomorphic: used for downloads and the editor's YAML view.
  */
-import { Document, isMap, isScalar, isSeq, Scalar, visit, type Node } from 'yaml';
+import { Document, isMap, isScalar, isSeq, Scalar, visit } from 'yaml';
 import type { FlowDefinition } from './schema';
 
 export const SCHEMA_COMMENT = 'yaml-language-server: $schema=./flow.schema.json';
@@ -49,7 +49,7 @@ function layout(def: FlowDefinition) {
 function inlineShortCollections(node: unknown, key?: string) {
 	if (isSeq(node)) {
 		const scalars = node.items.every((i) => !isMap(i) && !isSeq(i));
-		if (scalars) (node as Node).flow = true;
+		if (scalars) node.flow = true;
 		for (const item of node.items) {
 			if (isMap(item) && (key === 'outcomes' || key === 'ranges')) item.flow = true;
 			inlineShortCollections(item);
