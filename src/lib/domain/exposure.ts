@@ -13,11 +13,11 @@
  */
 import { z } from 'zod';
 import { parseIpCode, type IpCode } from './ipCode';
+import { liquidKinds, liquidWords, type LiquidKind } from './liquid';
 
 export { parseIpCode, type IpCode };
-
-export const liquidKinds = ['fresh', 'salt', 'chlorinated', 'sugary', 'other', 'unknown'] as const;
-export type LiquidKind = (typeof liquidKinds)[number];
+export { liquidKinds, liquidWords, type LiquidKind };
+export { urgencyHint, type UrgencyLevel } from './urgency';
 
 export const exposureStatuses = [
 	'within',
@@ -64,15 +64,6 @@ export interface ExposureAssessment {
 /** Said whenever a result could be read as "the phone is fine". */
 const SEALS_CAVEAT =
 	'A rating describes a new phone in a lab; age, drops and earlier opening weaken the seals (common practice), so inspect inside anyway.';
-
-const LIQUID_WORDS: Record<LiquidKind, string> = {
-	fresh: 'fresh water',
-	salt: 'salt water',
-	chlorinated: 'chlorinated water',
-	sugary: 'a sugary drink',
-	other: 'a liquid other than fresh water',
-	unknown: 'an unknown liquid'
-};
 
 const num = (value: number) => String(Number(value.toFixed(2)));
 
@@ -144,7 +135,7 @@ export function assessExposure(rating: DeviceRating, exposure: Exposure): Exposu
 	const freshWater = exposure.liquid === 'fresh';
 	const liquidNote = freshWater
 		? ''
-		: ` The liquid was ${LIQUID_WORDS[exposure.liquid]}; IP tests use fresh water only, so the rating says nothing about it.`;
+		: ` The liquid was ${liquidWords[exposure.liquid]}; IP tests use fresh water only, so the rating says nothing about it.`;
 	const liquidReason: ExposureReason[] = freshWater ? [] : ['liquid'];
 
 	if (!exposure.submerged) return assessSplash(ip, freshWater, liquidNote);
@@ -232,39 +223,4 @@ function assessSplash(ip: IpCode | null, freshWater: boolean, liquidNote: string
 				? `${ip.code} is an immersion rating; IEC 60529 does not say digits 7 and 8 cover splashes or jets.`
 				: `${ip.code} does not include a splash test (second digit 4 to 6).`;
 	return { status: 'undetermined', reasons: [], explanation: `${lead} ${why} Open and inspect.` };
-}
-
-export type UrgencyLevel = 'low' | 'elevated' | 'high' | 'critical';
-
-/**
- * How soon the board should be opened and cleaned. COMMON PRACTICE, NO PUBLISHED SOURCE: salt and
- * sugary liquids corrode fastest, chlorinated and unknown liquids next, fresh water slowest; every
- * hour the phone waits (worse still if it is powered) adds corrosion. The weights and hour bands below
- * are our own rule of thumb, not measured rates. `null` hours means the customer does not know.
- */
-export function urgencyHint(
-	hoursSinceExposure: number | null,
-	liquid: LiquidKind
-): { level: UrgencyLevel; text: string } {
-	if (hoursSinceExposure !== null && !(Number.isFinite(hoursSinceExposure) && hoursSinceExposure >= 0)) {
-		throw new RangeError(
-			`hoursSinceExposure must be a finite number ≥ 0 or null (got ${hoursSinceExposure})`
-		);
-	}
-	const liquidWeight = liquid === 'fresh' ? 0 : liquid === 'salt' || liquid === 'sugary' ? 2 : 1;
-	const h = hoursSinceExposure;
-	const waitBand = h === null ? 1 : h < 6 ? 0 : h < 24 ? 1 : h < 72 ? 2 : 3;
-	const levels: UrgencyLevel[] = ['low', 'elevated', 'high', 'critical'];
-	const level = levels[Math.min(3, liquidWeight + waitBand)];
-	const when = h === null ? 'an unknown time ago' : `${num(h)} h ago`;
-	const advice =
-		level === 'low'
-			? 'Open and clean it today.'
-			: level === 'elevated'
-				? 'Open and clean it soon, ahead of routine jobs.'
-				: 'Open and clean it now, before other work.';
-	return {
-		level,
-		text: `${LIQUID_WORDS[liquid][0].toUpperCase()}${LIQUID_WORDS[liquid].slice(1)}, ${when}: ${level} urgency. Disconnect the battery first. ${advice} (Common practice, no published source: salt and sugary liquids corrode fastest, and every hour of waiting makes it worse.)`
-	};
 }

@@ -112,7 +112,7 @@ function sortedCopy(values: readonly number[], fn: string): Float64Array {
 
 /**
  * The p-th percentile (p in [0, 100]) by linear interpolation between order statistics — Hyndman &
- * Fan (1996) type 7, the default of R's quantile() and of numpy.percentile. Position h = (n−1)·p/100
+ * Fan (1996, The American Statistician 50:361–365, cited from memory) type 7, the default of R's quantile() and of numpy.percentile. Position h = (n−1)·p/100
  * in the sorted values; the result interpolates between the values either side of h.
  * Empty input, non-finite values or p outside [0, 100] are a RangeError; the input is not modified.
  */
