@@ -1,0 +1,394 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { eq, sql } from 'drizzle-orm';
+import { getDb } from '$lib/server/db';
+import { auditLog } from '$lib/server/db/schema';
+import { runSteps, runs as runsTable } from '$lib/server/db/schema/runs';
+import { imeiCheckDigit } from '$lib/domain/identifiers';
+import * as staff from '$lib/server/staff/queries';
+import * as jobs from '$lib/server/jobs/queries';
+import * as library from '$lib/server/flows/queries';
+import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
+import * as runs from './queries';
+import { RunRuleError } from './queries';
+
+// Real in-memory PGlite migrated from drizzle/ (DATA_DIR=memory:// in vite.config.ts). The shipped
+// restart-loop flow is the fixture: its steps and outcomes are quoted from
+// flows/restart-loop-after-liquid.flow.yaml.
+const FLOW = 'restart-loop-after-liquid';
+const flowFile = `${FLOW}.flow.yaml`;
+const shipped = fs.readFileSync(path.resolve('flows', flowFile), 'utf8');
+const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-runs-'));
+let tech: { id: string };
+let counter = 0;
+
+/** Invented test IMEIs: "00" bodies (test reporting body, from memory), check digit computed. */
+const imei = (body14: string) => `${body14}${imeiCheckDigit(body14)}`;
+const key = () => `test-key-${++counter}-${Math.random().toString(36).slice(2)}`;
+
+function intake(over: Partial<JobIntake> = {}): JobIntake {
+	return makeJobIntake().parse({
+		customerName: 'Ebba Quillfeather',
+		customerPhone: '+00 555 0100',
+		maker: 'Corvana',
+		model: 'Tern 5',
+		imei: imei('00220000000001'),
+		symptoms: ['restart-loop'],
+		liquid: 'salt',
+		submerged: false,
+		passcodeStatus: 'given',
+		consentToOpen: true,
+		...over
+	});
+}
+
+async function newRun(over: Partial<JobIntake> = {}) {
+	const job = await jobs.create(tech.id, intake(over));
+	const run = await runs.start(job.id, FLOW, tech);
+	return { job, run };
+}
+
+async function stepRows(runId: string) {
+	const db = await getDb();
+	return db.select().from(runSteps).where(eq(runSteps.runId, runId)).orderBy(runSteps.seq);
+}
+
+async function refusal(p: Promise<unknown>): Promise<RunRuleError> {
+	const e = await p.then(
+		() => undefined,
+		(err: unknown) => err
+	);
+	expect(e).toBeInstanceOf(RunRuleError);
+	return e as RunRuleError;
+}
+
+beforeAll(async () => {
+	tech = await staff.create(null, {
+		name: 'Juno Calloway',
+		email: 'juno@shop.test',
+		role: 'technician',
+		password: 'tech-password-1'
+	});
+	fs.writeFileSync(path.join(tmp, flowFile), shipped);
+	const report = await library.importFromFiles(tmp);
+	expect(report.imported).toHaveLength(1);
+});
+
+afterAll(() => fs.rmSync(tmp, { recursive: true, force: true }));
+
+describe('starting a run', () => {
+	it('pins the current published version, starts at the first step and moves a received job to diagnosing', async () => {
+		const { job, run } = await newRun();
+		const v1 = await library.currentPublished(FLOW);
+		expect(run.flowVersionId).toBe(v1!.id);
+		expect(run.currentStep).toBe('power-on-as-received');
+		expect(run.status).toBe('in-progress');
+		expect((await jobs.get(job.id))!.status).toBe('diagnosing');
+		const db = await getDb();
+		const audit = await db.select().from(auditLog).where(eq(auditLog.targetId, run.id));
+		expect(audit.map((a) => a.action)).toEqual(['run.start']);
+	});
+
+	it('refuses without the customer’s consent to open the phone, and starts once it is recorded', async () => {
+		const job = await jobs.create(tech.id, intake({ consentToOpen: false }));
+		const e = await refusal(runs.start(job.id, FLOW, tech));
+		expect(e.code).toBe('no-consent');
+		expect(e.message).toMatch(/consent/);
+		expect(await runs.listForJob(job.id)).toEqual([]);
+		expect((await jobs.get(job.id))!.status).toBe('received');
+		await jobs.recordConsent(job.id, tech.id);
+		const run = await runs.start(job.id, FLOW, tech);
+		expect(run.status).toBe('in-progress');
+	});
+
+	it('refuses a flow with no published version and an unknown job', async () => {
+		const job = await jobs.create(tech.id, intake());
+		expect((await refusal(runs.start(job.id, 'no-such-flow', tech))).code).toBe('flow-not-published');
+		expect((await refusal(runs.start('00000000-0000-4000-8000-000000000000', FLOW, tech))).code).toBe(
+			'not-found'
+		);
+	});
+});
+
+describe('events', () => {
+	it('walks to a verdict, records that the data is reachable and completes the run', async () => {
+		const { job, run } = await newRun();
+		const r = await runs.recordEvent(
+			run.id,
+			{
+				type: 'ANSWER',
+				stepId: 'power-on-as-received',
+				outcome: 'Boots to the lock screen and stays up',
+				idempotencyKey: key(),
+				notes: ' ran two minutes '
+			},
+			tech
+		);
+		expect(r.state).toMatchObject({
+			status: 'completed',
+			currentStep: 'no-restart-on-bench',
+			verdictCode: 'no-restart-on-bench',
+			dataReachable: true
+		});
+		const detail = await runs.get(run.id);
+		expect(detail!.steps).toMatchObject([
+			{
+				seq: 1,
+				stepId: 'power-on-as-received',
+				kind: 'symptom',
+				notes: 'ran two minutes',
+				supersededAt: null
+			}
+		]);
+		expect(detail!.steps[0].answer).toEqual({
+			outcome: { index: 2, label: 'Boots to the lock screen and stays up' }
+		});
+		const [summary] = await runs.listForJob(job.id);
+		expect(summary).toMatchObject({ status: 'completed', verdictCode: 'no-restart-on-bench', answers: 1 });
+		const db = await getDb();
+		const audit = await db.select().from(auditLog).where(eq(auditLog.targetId, run.id));
+		expect(audit.map((a) => a.action).sort()).toEqual(['run.complete', 'run.start']);
+	});
+
+	it('answers 400 for an outcome the step does not have, naming the outcomes; nothing is written', async () => {
+		const { run } = await newRun();
+		for (const outcome of [3, -1, 'Explodes']) {
+			const e = await refusal(
+				runs.recordEvent(
+					run.id,
+					{ type: 'ANSWER', stepId: 'power-on-as-received', outcome, idempotencyKey: key() },
+					tech
+				)
+			);
+			expect(e.status).toBe(400);
+			expect(e.message).toContain('1 Restarts again and again');
+		}
+		const e = await refusal(
+			runs.recordEvent(
+				run.id,
+				{ type: 'MEASURE', stepId: 'power-on-as-received', value: 1, idempotencyKey: key() },
+				tech
+			)
+		);
+		expect(e.status).toBe(400);
+		expect(
+			(
+				await refusal(
+					runs.recordEvent(
+						run.id,
+						{ type: 'BACK', stepId: 'power-on-as-received', idempotencyKey: key() },
+						tech
+					)
+				)
+			).status
+		).toBe(400);
+		expect(await stepRows(run.id)).toEqual([]);
+	});
+
+	it('answers 409 with the current state for a step that is no longer current', async () => {
+		const { run } = await newRun();
+		await runs.recordEvent(
+			run.id,
+			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
+			tech
+		);
+		const e = await refusal(
+			runs.recordEvent(
+				run.id,
+				{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 1, idempotencyKey: key() },
+				tech
+			)
+		);
+		expect(e.status).toBe(409);
+		expect(e.code).toBe('stale-step');
+		expect(e.state).toMatchObject({ currentStep: 'open-and-disconnect', status: 'in-progress' });
+		expect(await stepRows(run.id)).toHaveLength(1);
+	});
+
+	it('treats a repeated idempotency key as a no-op that returns the same result', async () => {
+		const { run } = await newRun();
+		const k = key();
+		const event = { type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: k } as const;
+		const first = await runs.recordEvent(run.id, event, tech);
+		const before = await stepRows(run.id);
+		const [runBefore] = await (await getDb()).select().from(runsTable).where(eq(runsTable.id, run.id));
+		// The same key again, even after the run moved on, returns the stored answer unchanged.
+		const again = await runs.recordEvent(run.id, event, tech);
+		expect(again).toEqual(first);
+		expect(await stepRows(run.id)).toEqual(before);
+		const [runAfter] = await (await getDb()).select().from(runsTable).where(eq(runsTable.id, run.id));
+		expect(runAfter.updatedAt).toEqual(runBefore.updatedAt);
+		expect(first.state.currentStep).toBe('open-and-disconnect');
+	});
+
+	it('routes a reading by its range and refuses one outside the valid readings with the reason', async () => {
+		const { run } = await newRun();
+		const answer = (stepId: string, outcome: number) =>
+			runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
+		await answer('power-on-as-received', 0);
+		await answer('open-and-disconnect', 1);
+		await answer('inspect-front-area', 0);
+		const r = await answer('isolate-front-flex', 0);
+		expect(r.state).toMatchObject({ currentStep: 'front-connector-diode', dataReachable: true });
+		// The step's domain is 0–3 V (flow file); 5 V is refused with the machine's own words.
+		const e = await refusal(
+			runs.recordEvent(
+				run.id,
+				{ type: 'MEASURE', stepId: 'front-connector-diode', value: 5, idempotencyKey: key() },
+				tech
+			)
+		);
+		expect(e.status).toBe(400);
+		expect(e.message).toBe('A reading above 3 V is not possible here.');
+		const ok = await runs.recordEvent(
+			run.id,
+			{ type: 'MEASURE', stepId: 'front-connector-diode', value: 0.01, idempotencyKey: key() },
+			tech
+		);
+		// Below 0.05 V is the "Short to ground" band → front-line-short (flow file).
+		expect(ok.state).toMatchObject({ status: 'completed', verdictCode: 'front-line-short' });
+		const steps = await stepRows(run.id);
+		expect(steps.at(-1)!.answer).toEqual({
+			value: 0.01,
+			unit: 'V',
+			range: { index: 0, label: 'Short to ground' }
+		});
+	});
+
+	it('BACK keeps the revised answer in the trail, marked superseded, and returns to its step', async () => {
+		const { run } = await newRun();
+		await runs.recordEvent(
+			run.id,
+			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
+			tech
+		);
+		await runs.recordEvent(
+			run.id,
+			{ type: 'ANSWER', stepId: 'open-and-disconnect', outcome: 1, idempotencyKey: key() },
+			tech
+		);
+		const back = await runs.recordEvent(
+			run.id,
+			{ type: 'BACK', stepId: 'inspect-front-area', idempotencyKey: key() },
+			tech
+		);
+		expect(back.state.currentStep).toBe('open-and-disconnect');
+		await runs.recordEvent(
+			run.id,
+			{ type: 'ANSWER', stepId: 'open-and-disconnect', outcome: 0, idempotencyKey: key() },
+			tech
+		);
+		const detail = await runs.get(run.id);
+		expect(detail!.status).toBe('completed');
+		expect(detail!.verdictCode).toBe('battery-out-of-service');
+		expect(detail!.steps.map((s) => [s.seq, s.stepId, s.kind, s.supersededAt !== null])).toEqual([
+			[1, 'power-on-as-received', 'symptom', false],
+			[2, 'open-and-disconnect', 'test', true],
+			[3, 'inspect-front-area', 'back', false],
+			[4, 'open-and-disconnect', 'test', false]
+		]);
+		expect(detail!.steps[1].answer).toEqual({
+			outcome: { index: 1, label: 'Battery looks normal and is disconnected' }
+		});
+		expect(detail!.steps[2].answer).toEqual({ back: { revised: 2 } });
+	});
+
+	it('refuses events on a finished run and abandons only a run under way, with its reason', async () => {
+		const { run } = await newRun();
+		const abandoned = await runs.abandon(run.id, '  Customer collected the phone unrepaired ', tech);
+		expect(abandoned).toMatchObject({
+			status: 'abandoned',
+			abandonReason: 'Customer collected the phone unrepaired'
+		});
+		expect(abandoned.finishedAt).toBeInstanceOf(Date);
+		const e = await refusal(
+			runs.recordEvent(
+				run.id,
+				{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
+				tech
+			)
+		);
+		expect([e.status, e.code]).toEqual([409, 'run-finished']);
+		expect((await refusal(runs.abandon(run.id, 'again', tech))).status).toBe(409);
+	});
+});
+
+describe('transactions', () => {
+	it('leaves no half-written step when the run update fails after the step was inserted', async () => {
+		const { run } = await newRun();
+		const db = await getDb();
+		// A trigger makes the UPDATE of the run row fail, which happens after the run_steps INSERT.
+		await db.execute(sql`create function tm_fail_run_update() returns trigger language plpgsql as
+			$$ begin raise exception 'forced failure after the step insert'; end $$`);
+		await db.execute(
+			sql`create trigger tm_fail before update on runs for each row execute function tm_fail_run_update()`
+		);
+		try {
+			await expect(
+				runs.recordEvent(
+					run.id,
+					{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
+					tech
+				)
+			).rejects.toThrow();
+		} finally {
+			await db.execute(sql`drop trigger tm_fail on runs`);
+			await db.execute(sql`drop function tm_fail_run_update()`);
+		}
+		expect(await stepRows(run.id)).toEqual([]);
+		const detail = await runs.get(run.id);
+		expect(detail!.currentStep).toBe('power-on-as-received');
+		// The same event goes through once the fault is gone.
+		const ok = await runs.recordEvent(
+			run.id,
+			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
+			tech
+		);
+		expect(ok.seq).toBe(1);
+	});
+});
+
+describe('pinned version', () => {
+	it('a run under way keeps its version when a new one is published; new runs take the new one', async () => {
+		const { run } = await newRun();
+		const renamed = shipped.replace('- label: Restarts again and again', '- label: Keeps restarting');
+		expect(renamed).not.toBe(shipped);
+		fs.writeFileSync(path.join(tmp, flowFile), renamed);
+		const report = await library.importFromFiles(tmp);
+		expect(report.imported).toMatchObject([{ flowId: FLOW, version: 2 }]);
+
+		// The old run still speaks version 1's words …
+		const r = await runs.recordEvent(
+			run.id,
+			{
+				type: 'ANSWER',
+				stepId: 'power-on-as-received',
+				outcome: 'Restarts again and again',
+				idempotencyKey: key()
+			},
+			tech
+		);
+		expect(r.state.currentStep).toBe('open-and-disconnect');
+		expect((await runs.get(run.id))!.flow.version).toBe(1);
+
+		// … and a new run is on version 2, where that label no longer exists.
+		const { run: fresh } = await newRun();
+		expect((await runs.get(fresh.id))!.flow.version).toBe(2);
+		const e = await refusal(
+			runs.recordEvent(
+				fresh.id,
+				{
+					type: 'ANSWER',
+					stepId: 'power-on-as-received',
+					outcome: 'Restarts again and again',
+					idempotencyKey: key()
+				},
+				tech
+			)
+		);
+		expect(e.status).toBe(400);
+		expect(e.message).toContain('1 Keeps restarting');
+	});
+});

@@ -1,0 +1,38 @@
+import { json } from '@sveltejs/kit';
+import { z } from 'zod';
+import { requireRole } from '$lib/server/guards';
+import * as runs from '$lib/server/runs/queries';
+import { answer, badRequest, readJson } from '$lib/server/runs/http';
+import { runStartInput, type RunSummary } from '$lib/runs/types';
+import type { RequestHandler } from './$types';
+
+export type RunStartedResponse = { id: string; currentStep: string; flowVersionId: string };
+export type RunListResponse = { runs: RunSummary[] };
+
+const listQuery = z.object({ jobId: z.uuid('Give the job as ?jobId=<uuid>.') });
+
+/** GET /api/runs?jobId= — the runs of one job, newest first. */
+export const GET: RequestHandler = async (event) => {
+	requireRole(event, 'technician');
+	const parsed = listQuery.safeParse({ jobId: event.url.searchParams.get('jobId') ?? '' });
+	if (!parsed.success) return badRequest(parsed.error);
+	return json({ runs: await runs.listForJob(parsed.data.jobId) } satisfies RunListResponse);
+};
+
+/** POST /api/runs { jobId, flowId } — starts a run of the flow's current published version. */
+export const POST: RequestHandler = async (event) => {
+	const user = requireRole(event, 'technician');
+	const read = await readJson(event.request);
+	if (!read.ok) return read.response;
+	const parsed = runStartInput.safeParse(read.body);
+	if (!parsed.success) return badRequest(parsed.error);
+	return answer(async () => {
+		const run = await runs.start(parsed.data.jobId, parsed.data.flowId, user);
+		const body: RunStartedResponse = {
+			id: run.id,
+			currentStep: run.currentStep,
+			flowVersionId: run.flowVersionId
+		};
+		return json(body, { status: 201, headers: { location: `/api/runs/${run.id}` } });
+	});
+};
