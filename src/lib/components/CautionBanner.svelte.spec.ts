@@ -1,0 +1,28 @@
+import { render, screen } from '@testing-library/svelte';
+import { describe, expect, it } from 'vitest';
+import { CAUTIONS } from '$lib/flows/cautions';
+import CautionBanner from './CautionBanner.svelte';
+import Markdown from './Markdown.svelte';
+
+describe('CautionBanner', () => {
+	it('shows the words and the rule, with the reason behind a "Why" disclosure', () => {
+		render(CautionBanner, { code: 'solvent' });
+		const banner = screen.getByRole('note', { name: 'Caution: Isopropyl alcohol' });
+		expect(banner).toHaveTextContent(CAUTIONS.solvent.rule);
+		const why = screen.getByText('Why').closest('details')!;
+		expect(why.open).toBe(false);
+		// The flash point named in the vocabulary (NIOSH Pocket Guide) is the reason given.
+		expect(why).toHaveTextContent('11.7 °C');
+		expect(banner.querySelector('svg')).not.toBeNull();
+	});
+});
+
+describe('Markdown', () => {
+	it('renders sanitised markdown', () => {
+		const { container } = render(Markdown, {
+			source: '**Battery** first <img src=x onerror="window.pwned=1">'
+		});
+		expect(container.querySelector('strong')).toHaveTextContent('Battery');
+		expect(container.innerHTML).not.toContain('onerror');
+	});
+});
