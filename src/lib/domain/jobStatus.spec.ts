@@ -22,7 +22,10 @@ const forward: [JobStatus, JobStatus][] = [
 ];
 const back: [JobStatus, JobStatus][] = [
 	['testing', 'diagnosing'],
-	['awaiting-approval', 'diagnosing']
+	['awaiting-approval', 'diagnosing'],
+	['repairing', 'diagnosing'],
+	// A declined quote: the phone goes back to the customer unrepaired.
+	['awaiting-approval', 'ready']
 ];
 const nonFinal: JobStatus[] = [
 	'received',

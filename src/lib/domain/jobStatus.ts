@@ -6,7 +6,9 @@
  *
  * Moves back: testing → diagnosing (a failed function test reopens diagnosis) and
  * awaiting-approval → diagnosing (new evidence or a customer question before approval means the
- * verdict is looked at again). Any job that is not finished can be cancelled. `collected` and
+ * verdict is looked at again); repairing → diagnosing (the repair uncovers another fault).
+ * awaiting-approval → ready: the customer declined the quote and collects the phone unrepaired.
+ * Any job that is not finished can be cancelled. `collected` and
  * `cancelled` are final: a returning phone is a new job, so its history stays readable.
  */
 import { z } from 'zod';
@@ -41,8 +43,8 @@ const FINAL: ReadonlySet<JobStatus> = new Set(['collected', 'cancelled']);
 const NEXT: Record<JobStatus, readonly JobStatus[]> = {
 	received: ['diagnosing', 'cancelled'],
 	diagnosing: ['awaiting-approval', 'cancelled'],
-	'awaiting-approval': ['repairing', 'diagnosing', 'cancelled'],
-	repairing: ['testing', 'cancelled'],
+	'awaiting-approval': ['repairing', 'diagnosing', 'ready', 'cancelled'],
+	repairing: ['testing', 'diagnosing', 'cancelled'],
 	testing: ['ready', 'diagnosing', 'cancelled'],
 	ready: ['collected', 'cancelled'],
 	collected: [],
