@@ -6,3 +6,4 @@ export * from './mail';
 export * from './payments';
 export * from "./jobs";
 export * from "./runs";
+export * from "./attachments";
