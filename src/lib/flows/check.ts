@@ -53,10 +53,21 @@ export interface CheckOptions {
 	fileStem?: string;
 }
 
+/** Shape check only: the definition, or one `schema` problem per fault. */
+export function validateFlow(
+	input: unknown
+): { ok: true; definition: FlowDefinition } | { ok: false; problems: FlowProblem[] } {
+	const parsed = flowSchema.safeParse(input);
+	if (parsed.success) return { ok: true, definition: parsed.data };
+	// Only a failing definition pays for the offending values that make the messages concrete.
+	const detailed = flowSchema.safeParse(input, { reportInput: true });
+	return { ok: false, problems: schemaProblems(detailed.error ?? parsed.error) };
+}
+
 export function checkFlow(input: unknown, options: CheckOptions = {}): CheckResult {
-	const parsed = flowSchema.safeParse(input, { reportInput: true });
-	if (!parsed.success) return { ok: false, problems: schemaProblems(parsed.error), stats: null };
-	const def = parsed.data;
+	const valid = validateFlow(input);
+	if (!valid.ok) return { ok: false, problems: valid.problems, stats: null };
+	const def = valid.definition;
 	const problems: FlowProblem[] = [];
 
 	if (options.fileStem !== undefined && def.id !== options.fileStem)

@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { createActor } from 'xstate';
 import { describe, expect, it } from 'vitest';
-import { compileFlow, currentStep, rangeFor, resolveOutcome } from './machine';
+import { applyEvent, compileFlow, currentStep, rangeFor, refusal, replay, resolveOutcome } from './machine';
 import { parseFlow } from './parse';
 import type { ChoiceStep, FlowDefinition, MeasureStep } from './schema';
 
@@ -155,5 +155,55 @@ describe('helpers', () => {
 
 	it('currentStep is undefined after the flow has no such state', () => {
 		expect(currentStep({ value: 'gone' }, def)).toBeUndefined();
+	});
+});
+
+describe('pure helpers for the server', () => {
+	const machine = compileFlow(def);
+
+	it('replays events and stops at the first refused one', () => {
+		const ok = replay(machine, [
+			{ type: 'ANSWER', outcome: 0 },
+			{ type: 'ANSWER', outcome: 'Clean' },
+			{ type: 'MEASURE', value: 10 }
+		]);
+		expect(ok.refusedAt).toBeNull();
+		expect(ok.snapshot.status).toBe('done');
+		expect(ok.snapshot.output?.verdict).toBe('replace-speaker');
+
+		const bad = replay(machine, [
+			{ type: 'ANSWER', outcome: 0 },
+			{ type: 'MEASURE', value: 10 },
+			{ type: 'ANSWER', outcome: 0 }
+		]);
+		expect(bad.refusedAt).toBe(1);
+		expect(bad.snapshot.value).toBe('open-and-look');
+	});
+
+	it('applyEvent refuses after the verdict and agrees with an actor', () => {
+		const done = replay(machine, [
+			{ type: 'ANSWER', outcome: 0 },
+			{ type: 'ANSWER', outcome: 0 },
+			{ type: 'ANSWER', outcome: 'Sound is back' }
+		]).snapshot;
+		expect(done.value).toBe('cleaned');
+		expect(applyEvent(machine, done, { type: 'BACK' }).accepted).toBe(false);
+
+		const actor = start();
+		actor.send({ type: 'ANSWER', outcome: 1 });
+		const pure = applyEvent(machine, replay(machine, []).snapshot, { type: 'ANSWER', outcome: 1 });
+		expect(pure.accepted).toBe(true);
+		expect(pure.snapshot.value).toBe(actor.getSnapshot().value);
+		expect(pure.snapshot.context).toEqual(actor.getSnapshot().context);
+	});
+
+	it('refusal explains in words why a step refuses an event', () => {
+		expect(refusal(def, 'speaker-resistance', { type: 'MEASURE', value: -2 })).toBe(
+			'A reading below 0 Ω is not possible here.'
+		);
+		expect(refusal(def, 'speaker-resistance', { type: 'MEASURE', value: 2 })).toBeNull();
+		expect(refusal(def, 'speaker-resistance', { type: 'ANSWER', outcome: 0 })).toMatch(/takes a reading/);
+		expect(refusal(def, 'symptom', { type: 'ANSWER', outcome: 'Silence' })).toMatch(/not one of the choices/);
+		expect(refusal(def, 'cleaned', { type: 'BACK' })).toMatch(/verdict/);
 	});
 });

@@ -3,7 +3,7 @@
  * The same machine runs in the browser (instant feedback) and on the server (re-validating every
  * event), so it is plain TypeScript: no Svelte, no database, no clock.
  */
-import { assign, setup, type SnapshotFrom } from 'xstate';
+import { assign, initialTransition, setup, transition, type SnapshotFrom } from 'xstate';
 import { rangeFor } from './ranges';
 import { exitsOf, type ChoiceStep, type FlowDefinition, type MeasureStep, type Step } from './schema';
 
@@ -190,4 +190,49 @@ export function currentStep(
 	const id = snapshot.value;
 	if (typeof id !== 'string' || !Object.hasOwn(definition.steps, id)) return undefined;
 	return { id, step: definition.steps[id] };
+}
+
+/**
+ * One event applied purely (no actor): the server's re-validation of a client's step.
+ * A refused event returns the same snapshot with `accepted: false`.
+ */
+export function applyEvent(
+	machine: FlowMachine,
+	snapshot: FlowSnapshot,
+	event: FlowEvent
+): { accepted: boolean; snapshot: FlowSnapshot } {
+	if (snapshot.status !== 'active') return { accepted: false, snapshot };
+	const [next] = transition(machine, snapshot, event);
+	return { accepted: next !== snapshot, snapshot: next };
+}
+
+/** Replays a run's events from the start; stops at the first refused event. */
+export function replay(
+	machine: FlowMachine,
+	events: readonly FlowEvent[]
+): { snapshot: FlowSnapshot; refusedAt: number | null } {
+	let [snapshot] = initialTransition(machine);
+	for (let i = 0; i < events.length; i++) {
+		const result = applyEvent(machine, snapshot, events[i]);
+		if (!result.accepted) return { snapshot, refusedAt: i };
+		snapshot = result.snapshot;
+	}
+	return { snapshot, refusedAt: null };
+}
+
+/** Why the step on screen would refuse an event, in words for the technician; null if it would not. */
+export function refusal(definition: FlowDefinition, stepId: string, event: FlowEvent): string | null {
+	const step = definition.steps[stepId];
+	if (!step) return `The flow has no step "${stepId}".`;
+	if (step.kind === 'verdict') return 'The flow has reached its verdict.';
+	if (event.type === 'BACK') return null;
+	if (step.kind === 'measure') {
+		if (event.type !== 'MEASURE') return 'This step takes a reading, not an answer.';
+		const r = rangeFor(step, event.value);
+		return r.ok ? null : r.message;
+	}
+	if (event.type !== 'ANSWER') return 'This step takes an answer, not a reading.';
+	return resolveOutcome(step, event.outcome) < 0
+		? 'That answer is not one of the choices of this step.'
+		: null;
 }

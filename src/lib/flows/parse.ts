@@ -4,9 +4,9 @@
  * refused, a size cap, and a cap on alias expansion against "billion laughs" documents.
  */
 import { isAlias, isMap, isSeq, LineCounter, parseDocument, type Document, type Node } from 'yaml';
-import { checkFlow, type CheckOptions, type CheckResult } from './check';
-import { schemaProblems, type FlowPath, type FlowProblem } from './problems';
-import { flowSchema, type FlowDefinition } from './schema';
+import { checkFlow, validateFlow, type CheckOptions, type CheckResult } from './check';
+import type { FlowPath, FlowProblem } from './problems';
+import type { FlowDefinition } from './schema';
 
 export const MAX_FLOW_CHARS = 512_000;
 const MAX_ALIASES = 20;
@@ -72,10 +72,9 @@ export function parseFlow(text: string): ParseResult {
 		return { ok: false, locate, problems: [{ code: 'schema', message: `YAML: ${message}` }] };
 	}
 
-	const parsed = flowSchema.safeParse(data, { reportInput: true });
-	if (!parsed.success)
-		return { ok: false, locate, problems: withLines(schemaProblems(parsed.error), locate) };
-	return { ok: true, definition: parsed.data, locate };
+	const valid = validateFlow(data);
+	if (!valid.ok) return { ok: false, locate, problems: withLines(valid.problems, locate) };
+	return { ok: true, definition: valid.definition, locate };
 }
 
 /** Adds line and column to every problem that has a path. */
