@@ -7,3 +7,4 @@ export * from './payments';
 export * from "./jobs";
 export * from "./runs";
 export * from "./attachments";
+export * from "./insights";
