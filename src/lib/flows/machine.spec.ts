@@ -129,8 +129,11 @@ describe('compileFlow', () => {
 		expect(resumed.getSnapshot().value).toBe('open-and-look');
 	});
 
-	it('refuses a definition whose start is missing', () => {
+	it('refuses a definition whose start or a target is missing', () => {
 		expect(() => compileFlow({ ...def, start: 'nowhere' })).toThrow(/no start step/);
+		const broken = structuredClone(def);
+		(broken.steps.symptom as ChoiceStep).outcomes![1].next = 'gone';
+		expect(() => compileFlow(broken)).toThrow('step "symptom" leads to unknown step "gone"');
 	});
 });
 

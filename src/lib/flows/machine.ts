@@ -68,6 +68,9 @@ export function compileFlow(definition: FlowDefinition) {
 	const predecessors = new Map<string, Set<string>>();
 	for (const [id, step] of Object.entries(steps))
 		for (const next of exitsOf(step)) {
+			// Compile only checked flows; this guard names the fault instead of xstate's generic error.
+			if (!Object.hasOwn(steps, next))
+				throw new Error(`Flow ${definition.id}: step "${id}" leads to unknown step "${next}"`);
 			if (!predecessors.has(next)) predecessors.set(next, new Set());
 			predecessors.get(next)!.add(id);
 		}
