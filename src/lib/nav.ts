@@ -10,10 +10,22 @@ export type NavItem = { href: string; label: string; role: Role; description?: s
 export const navItems: NavItem[] = [
 	{ href: '/', label: 'Today', role: 'technician' },
 	{
+		href: '/jobs',
+		label: 'Jobs',
+		role: 'technician',
+		description: 'Take in a phone, find a job, move it along.'
+	},
+	{
 		href: '/staff',
 		label: 'Staff',
 		role: 'lead',
 		description: 'Accounts, roles and passwords of the shop’s staff.'
+	},
+	{
+		href: '/outbox',
+		label: 'Outbox',
+		role: 'lead',
+		description: 'Every e-mail sent to customers: queued, sent or failed, and why.'
 	}
 ];
 

@@ -13,7 +13,8 @@ const publicAllowList = new Set([
 	'(auth)/signin/+page.server.ts', // the sign-in form itself
 	'(auth)/signout/+page.server.ts', // clears whatever session the cookie holds
 	'theme/+server.ts', // a display preference cookie, used on the sign-in page too
-	'api/health/+server.ts' // liveness for monitors and the start-up benchmark; no data
+	'api/health/+server.ts', // liveness for monitors and the start-up benchmark; no data
+	'api/payments/webhook/+server.ts' // authenticated by the payment service's signature
 ]);
 
 function serverEntryPoints(dir: string): string[] {

@@ -24,7 +24,8 @@ onStartup('local fakes', async () => {
 
 // Sends queued mail in the background; without an SMTP server mail waits in the queue.
 onStartup('mail worker', async () => {
-	if (!smtpUrl()) console.warn('[mail] SMTP_URL is not set: e-mail stays queued until it is (see the Outbox).');
+	if (!smtpUrl())
+		console.warn('[mail] SMTP_URL is not set: e-mail stays queued until it is (see the Outbox).');
 	if (process.env.STRIPE_SECRET_KEY && !process.env.STRIPE_WEBHOOK_SECRET) {
 		console.warn('[payments] STRIPE_WEBHOOK_SECRET is not set: payment confirmations will be refused.');
 	}

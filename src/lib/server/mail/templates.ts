@@ -1,0 +1,225 @@
+// The app's own e-mails, each as plain text and HTML from one set of typed data. Every value that
+// reaches the HTML goes through escapeHtml (or safeHref for links); the subject is one line.
+import { formatMoney } from '$lib/domain/money';
+
+export type RenderedMail = { template: TemplateName; subject: string; text: string; html: string };
+export type TemplateName = 'report-ready' | 'payment-receipt' | 'ready-to-collect' | 'test';
+
+/** Shop details every mail signs with. */
+export type ShopInfo = { name: string; phone?: string; address?: string; locale?: string; timeZone?: string };
+
+const entities: Record<string, string> = {
+	'&': '&amp;',
+	'<': '&lt;',
+	'>': '&gt;',
+	'"': '&quot;',
+	"'": '&#39;'
+};
+
+export function escapeHtml(value: string): string {
+	return value.replace(/[&<>"']/g, (c) => entities[c]);
+}
+
+/** Only http(s) links go into a mail; anything else (javascript:, data:) is a programming error. */
+export function safeHref(url: string): string {
+	const parsed = new URL(url);
+	if (parsed.protocol !== 'https:' && parsed.protocol !== 'http:') {
+		throw new Error(`Refusing a ${parsed.protocol} link in an e-mail.`);
+	}
+	return parsed.toString();
+}
+
+const oneLine = (s: string) => s.replace(/[\r\n]+/g, ' ').trim();
+
+function formatDate(d: Date, shop: ShopInfo) {
+	return new Intl.DateTimeFormat(shop.locale ?? 'en-GB', {
+		dateStyle: 'long',
+		timeZone: shop.timeZone
+	}).format(d);
+}
+function formatDateTime(d: Date, shop: ShopInfo) {
+	return new Intl.DateTimeFormat(shop.locale ?? 'en-GB', {
+		dateStyle: 'long',
+		timeStyle: 'short',
+		timeZone: shop.timeZone
+	}).format(d);
+}
+
+function signatureText(shop: ShopInfo) {
+	return [shop.name, shop.address, shop.phone].filter(Boolean).join('\n');
+}
+
+/** Simple, table-free HTML with inline styles: mail programs ignore <style> blocks and page CSS. */
+function layout(shop: ShopInfo, title: string, body: string): string {
+	const footer = [shop.address, shop.phone]
+		.filter(Boolean)
+		.map((s) => escapeHtml(s!))
+		.join(' · ');
+	return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width"><title>${escapeHtml(title)}</title></head>
+<body style="margin:0;padding:0;background:#f4f1ea;color:#1d2430;font-family:Helvetica,Arial,sans-serif;font-size:16px;line-height:1.5">
+<div style="max-width:560px;margin:0 auto;padding:24px 16px">
+<p style="margin:0 0 16px;font-weight:bold;color:#1f4e5f">${escapeHtml(shop.name)}</p>
+<div style="background:#ffffff;border:1px solid #d9d3c7;border-radius:8px;padding:24px">
+${body}
+</div>
+${footer ? `<p style="margin:16px 0 0;font-size:13px;color:#5b6472">${footer}</p>` : ''}
+</div>
+</body></html>`;
+}
+
+function button(href: string, label: string) {
+	return `<p style="margin:24px 0"><a href="${escapeHtml(safeHref(href))}" style="display:inline-block;background:#1f4e5f;color:#ffffff;text-decoration:none;padding:12px 20px;border-radius:6px;font-weight:bold">${escapeHtml(label)}</a></p>
+<p style="margin:0 0 16px;font-size:13px;color:#5b6472">If the button does not work, copy this address into your browser:<br><span style="word-break:break-all">${escapeHtml(safeHref(href))}</span></p>`;
+}
+
+const p = (html: string) => `<p style="margin:0 0 16px">${html}</p>`;
+
+export type ReportReadyData = {
+	shop: ShopInfo;
+	customerName: string;
+	jobNumber: string;
+	device: string;
+	reportUrl: string;
+	expiresAt: Date;
+};
+
+/** The findings report is ready: a private link to read it, approve the quote and pay. */
+export function reportReady(d: ReportReadyData): RenderedMail {
+	const subject = oneLine(`Your ${d.device} — findings and quote (job ${d.jobNumber})`);
+	const until = formatDate(d.expiresAt, d.shop);
+	const text = `Hello ${d.customerName},
+
+We have examined your ${d.device} (job ${d.jobNumber}). Our findings, the photos, what we propose and the price are on this private page, where you can also approve the quote and pay:
+
+${safeHref(d.reportUrl)}
+
+The link is for you alone and works until ${until}. Until we have spoken, please do not try to charge the phone or switch it on.
+
+${signatureText(d.shop)}
+`;
+	const html = layout(
+		d.shop,
+		subject,
+		[
+			p(`Hello ${escapeHtml(d.customerName)},`),
+			p(
+				`We have examined your <strong>${escapeHtml(d.device)}</strong> (job <span style="font-family:monospace">${escapeHtml(d.jobNumber)}</span>). Our findings, the photos, what we propose and the price are on a private page, where you can also approve the quote and pay.`
+			),
+			button(d.reportUrl, 'Read the findings'),
+			p(
+				`The link is for you alone and works until ${escapeHtml(until)}. Until we have spoken, please do not try to charge the phone or switch it on.`
+			)
+		].join('\n')
+	);
+	return { template: 'report-ready', subject, text, html };
+}
+
+export type PaymentReceiptData = {
+	shop: ShopInfo;
+	customerName: string;
+	jobNumber: string;
+	description: string;
+	amountMinor: number;
+	currency: string;
+	paidAt: Date;
+	/** Our payment id, to quote when asking about the payment. */
+	paymentRef: string;
+};
+
+/** A receipt after a confirmed payment. */
+export function paymentReceipt(d: PaymentReceiptData): RenderedMail {
+	const amount = formatMoney(d.amountMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB');
+	const when = formatDateTime(d.paidAt, d.shop);
+	const subject = oneLine(`Receipt: ${amount} paid to ${d.shop.name} (job ${d.jobNumber})`);
+	const text = `Hello ${d.customerName},
+
+Thank you: we have received your payment.
+
+  For:        ${d.description}
+  Job:        ${d.jobNumber}
+  Amount:     ${amount}
+  Paid:       ${when}
+  Reference:  ${d.paymentRef}
+
+Please keep this mail as your receipt.
+
+${signatureText(d.shop)}
+`;
+	const row = (k: string, v: string, mono = false) =>
+		`<tr><td style="padding:4px 16px 4px 0;color:#5b6472;vertical-align:top">${k}</td><td style="padding:4px 0${mono ? ';font-family:monospace' : ''}">${escapeHtml(v)}</td></tr>`;
+	const html = layout(
+		d.shop,
+		subject,
+		[
+			p(`Hello ${escapeHtml(d.customerName)},`),
+			p('Thank you: we have received your payment.'),
+			`<table style="border-collapse:collapse;margin:0 0 16px">${row('For', d.description)}${row('Job', d.jobNumber, true)}${row('Amount', amount)}${row('Paid', when)}${row('Reference', d.paymentRef, true)}</table>`,
+			p('Please keep this mail as your receipt.')
+		].join('\n')
+	);
+	return { template: 'payment-receipt', subject, text, html };
+}
+
+export type ReadyToCollectData = {
+	shop: ShopInfo;
+	customerName: string;
+	jobNumber: string;
+	device: string;
+	/** Left to pay at the counter, if anything. */
+	amountDueMinor?: number;
+	currency?: string;
+	openingHours?: string;
+};
+
+/** The phone is ready to collect. */
+export function readyToCollect(d: ReadyToCollectData): RenderedMail {
+	const due =
+		d.amountDueMinor && d.amountDueMinor > 0 && d.currency
+			? formatMoney(d.amountDueMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB')
+			: null;
+	const subject = oneLine(`Your ${d.device} is ready to collect (job ${d.jobNumber})`);
+	const text = [
+		`Hello ${d.customerName},`,
+		`Your ${d.device} (job ${d.jobNumber}) is ready to collect.`,
+		due ? `Left to pay at the counter: ${due}.` : 'There is nothing left to pay.',
+		d.openingHours ? `We are open ${d.openingHours}.` : '',
+		'Please bring this mail or your job number with you.',
+		signatureText(d.shop)
+	]
+		.filter(Boolean)
+		.join('\n\n');
+	const html = layout(
+		d.shop,
+		subject,
+		[
+			p(`Hello ${escapeHtml(d.customerName)},`),
+			p(
+				`Your <strong>${escapeHtml(d.device)}</strong> (job <span style="font-family:monospace">${escapeHtml(d.jobNumber)}</span>) is ready to collect.`
+			),
+			p(
+				due
+					? `Left to pay at the counter: <strong>${escapeHtml(due)}</strong>.`
+					: 'There is nothing left to pay.'
+			),
+			d.openingHours ? p(`We are open ${escapeHtml(d.openingHours)}.`) : '',
+			p('Please bring this mail or your job number with you.')
+		].join('\n')
+	);
+	return { template: 'ready-to-collect', subject, text: text + '\n', html };
+}
+
+/** A test message a lead sends from the Outbox to check the mail settings. */
+export function testMessage(d: { shop: ShopInfo; sentBy: string }): RenderedMail {
+	const subject = oneLine(`Test message from ${d.shop.name}`);
+	const text = `This is a test message sent by ${d.sentBy} from the Tidemark Outbox.\nIf you can read it, the shop's e-mail settings work.\n\n${signatureText(d.shop)}\n`;
+	const html = layout(
+		d.shop,
+		subject,
+		[
+			p(`This is a test message sent by ${escapeHtml(d.sentBy)} from the Tidemark Outbox.`),
+			p("If you can read it, the shop's e-mail settings work.")
+		].join('\n')
+	);
+	return { template: 'test', subject, text, html };
+}
