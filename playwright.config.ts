@@ -42,6 +42,7 @@ export default defineConfig({
 			DATA_DIR: process.env.E2E_DATA_DIR ?? '.e2e-data',
 			AUTH_SECRET: 'e2e-secret-e2e-secret-e2e-secret-0123456789',
 			TIDEMARK_DEMO: '1',
+			TIDEMARK_FAKES: '1', // local mail and payment services (src/lib/server/fakes)
 			DEMO_PASSWORD: 'e2e-demo-password'
 		}
 	}
