@@ -9,6 +9,7 @@ import { getDb, type DB, type Tx } from '$lib/server/db';
 import { flows, flowVersions, users } from '$lib/server/db/schema';
 import { runs, runSteps, type Run, type StepAnswer } from '$lib/server/db/schema/runs';
 import { record } from '$lib/server/audit';
+import { recordRunFinished } from '$lib/server/insights/facts';
 import * as jobQueries from '$lib/server/jobs/queries';
 import * as flowLibrary from '$lib/server/flows/queries';
 import { withStepOrder } from '$lib/server/flows/queries';
@@ -298,6 +299,8 @@ export async function recordEvent(
 				updatedAt: at
 			})
 			.where(eq(runs.id, runId));
+		// Insights: the finished run's flat facts row, in this transaction (src/lib/server/insights/facts.ts).
+		if (done) await recordRunFinished(tx, runId);
 		if (done)
 			await record(tx, {
 				actorId: actor.id,
@@ -334,6 +337,7 @@ export async function abandon(runId: string, reason: string, actor: Actor): Prom
 			.set({ status: 'abandoned', abandonReason: reason.trim(), finishedAt: now, updatedAt: now })
 			.where(eq(runs.id, runId))
 			.returning();
+		await recordRunFinished(tx, runId); // Insights: facts row of the abandoned run (insights/facts.ts).
 		await record(tx, {
 			actorId: actor.id,
 			action: 'run.abandon',
