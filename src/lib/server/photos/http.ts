@@ -1,0 +1,95 @@
+import { json, type RequestEvent } from '@sveltejs/kit';
+import type { z } from 'zod';
+import { MAX_PHOTO_BYTES, formatBytes } from '$lib/photos/limits';
+import type { PhotoErrorResponse, PhotoUploadResponse } from '$lib/photos/api';
+import * as photos from './queries';
+import { PhotoRejected, PhotoRuleError } from './queries';
+
+export function fail(status: number, body: PhotoErrorResponse) {
+	return json(body, { status });
+}
+
+export function badRequest(error: z.ZodError) {
+	const issues = error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message }));
+	return fail(400, {
+		message: issues[0]?.message ?? 'The request needs attention.',
+		code: 'bad-request',
+		issues
+	});
+}
+
+/** Turns a refusal into its JSON answer; anything else is a real fault and goes on up. */
+export async function answer(work: () => Promise<Response>): Promise<Response> {
+	try {
+		return await work();
+	} catch (e) {
+		if (e instanceof PhotoRejected || e instanceof PhotoRuleError) {
+			return fail(e.status, { message: e.message, code: e.code });
+		}
+		throw e;
+	}
+}
+
+// Room for the multipart envelope and the text fields around the file.
+const envelopeSlack = 64 * 1024;
+
+/**
+ * Reads a multipart upload with one `file` part and text fields. Refuses before reading the body
+ * when the declared length is already too large, so an oversized upload costs no memory.
+ */
+export async function readUpload(
+	event: Pick<RequestEvent, 'request'>
+): Promise<{ ok: true; file: File; fields: Record<string, string> } | { ok: false; response: Response }> {
+	const { request } = event;
+	const type = request.headers.get('content-type') ?? '';
+	if (!type.startsWith('multipart/form-data')) {
+		return {
+			ok: false,
+			response: fail(400, {
+				message: 'Send the photo as multipart/form-data with the image in a part named "file".',
+				code: 'bad-request'
+			})
+		};
+	}
+	const length = Number(request.headers.get('content-length') ?? 0);
+	if (length > MAX_PHOTO_BYTES + envelopeSlack) return { ok: false, response: tooBig(length) };
+	let form: FormData;
+	try {
+		form = await request.formData();
+	} catch {
+		return {
+			ok: false,
+			response: fail(400, { message: 'The upload could not be read.', code: 'bad-request' })
+		};
+	}
+	const file = form.get('file');
+	if (!(file instanceof File)) {
+		return {
+			ok: false,
+			response: fail(400, { message: 'Choose a photo to upload (no "file" part).', code: 'bad-request' })
+		};
+	}
+	if (file.size > MAX_PHOTO_BYTES) return { ok: false, response: tooBig(file.size) };
+	const fields: Record<string, string> = {};
+	for (const [k, v] of form.entries()) if (typeof v === 'string') fields[k] = v;
+	return { ok: true, file, fields };
+}
+
+function tooBig(size: number) {
+	return fail(413, {
+		message: `The file is ${formatBytes(size)}; photos may be at most ${formatBytes(MAX_PHOTO_BYTES)}. Take it at a lower resolution or export a smaller copy.`,
+		code: 'too-big'
+	});
+}
+
+/** Stores the upload against its target; 201 with the photo, or 200 when it was already there. */
+export async function store(
+	actorId: string,
+	target: photos.PhotoTarget,
+	file: File,
+	fields: { source: 'phone' | 'microscope'; caption: string }
+) {
+	const bytes = new Uint8Array(await file.arrayBuffer());
+	const result = await photos.add(actorId, target, { bytes, source: fields.source, caption: fields.caption });
+	return json(result satisfies PhotoUploadResponse, { status: result.duplicate ? 200 : 201 });
+}

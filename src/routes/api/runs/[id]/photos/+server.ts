@@ -1,0 +1,36 @@
+import { json } from '@sveltejs/kit';
+import { requireRole } from '$lib/server/guards';
+import * as photos from '$lib/server/photos/queries';
+import { answer, badRequest, fail, readUpload, store } from '$lib/server/photos/http';
+import { photoId, runPhotoUploadFields, type PhotoListResponse } from '$lib/photos/api';
+import type { RequestHandler } from './$types';
+
+export type { PhotoListResponse, PhotoUploadResponse, PhotoErrorResponse } from '$lib/photos/api';
+
+/** GET /api/runs/:id/photos[?stepId=…]: the run's photos (of one step when asked), oldest first. */
+export const GET: RequestHandler = async (event) => {
+	requireRole(event, 'technician');
+	if (!photoId.safeParse(event.params.id).success)
+		return fail(404, { message: 'No such run.', code: 'not-found' });
+	const stepId = event.url.searchParams.get('stepId') ?? undefined;
+	return json({ photos: await photos.listForRun(event.params.id, stepId) } satisfies PhotoListResponse);
+};
+
+/**
+ * POST /api/runs/:id/photos (multipart: file, stepId, source, caption): a photo taken at a step of
+ * the run, filed on the run's job too. The step must be the current one or one already answered.
+ * Same answers as POST /api/jobs/:id/photos, plus 409 for a step this run has not reached.
+ */
+export const POST: RequestHandler = async (event) => {
+	const user = requireRole(event, 'technician');
+	if (!photoId.safeParse(event.params.id).success)
+		return fail(404, { message: 'No such run.', code: 'not-found' });
+	const upload = await readUpload(event);
+	if (!upload.ok) return upload.response;
+	const fields = runPhotoUploadFields.safeParse(upload.fields);
+	if (!fields.success) return badRequest(fields.error);
+	return answer(async () => {
+		const target = await photos.runTarget(event.params.id, fields.data.stepId);
+		return store(user.id, target, upload.file, fields.data);
+	});
+};
