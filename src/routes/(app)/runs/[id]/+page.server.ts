@@ -1,0 +1,24 @@
+import { error } from '@sveltejs/kit';
+import { requireRole } from '$lib/server/guards';
+import * as runs from '$lib/server/runs/queries';
+import * as jobs from '$lib/server/jobs/queries';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'technician');
+	const run = await runs.get(event.params.id);
+	if (!run) error(404, { message: 'No run with this id. Runs are started from a job.' });
+	const job = await jobs.get(run.jobId);
+	if (!job) error(404, { message: 'The job of this run is missing.' });
+	return {
+		run,
+		job: {
+			id: job.id,
+			jobNumber: jobs.formatJobNumber(job.number),
+			maker: job.maker,
+			model: job.model,
+			customerName: job.customer.name,
+			dataFirst: job.dataFirst
+		}
+	};
+};
