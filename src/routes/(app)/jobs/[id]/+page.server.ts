@@ -1,0 +1,66 @@
+import { error, fail } from '@sveltejs/kit';
+import { z } from 'zod';
+import { requireRole } from '$lib/server/guards';
+import * as jobs from '$lib/server/jobs/queries';
+import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'technician');
+	const job = await jobs.get(event.params.id);
+	if (!job)
+		error(404, { message: 'No job with this id. It may have been typed wrong; find it in the job list.' });
+	return { job, staff: await jobs.assignableStaff(), created: event.url.searchParams.has('created') };
+};
+
+const statusForm = z.object({
+	to: jobStatusSchema,
+	note: z.string().trim().max(1000, 'Keep the note under 1000 characters.').default('')
+});
+const assignForm = z.object({ technicianId: z.union([z.uuid(), z.literal('')]) });
+
+/** Each action answers `{ action, ok, message }` so the page can say what happened beside the control. */
+function refused(action: string, status: number, message: string) {
+	return fail(status, { action, ok: false, message });
+}
+
+export const actions: Actions = {
+	status: async (event) => {
+		const user = requireRole(event, 'technician');
+		const parsed = statusForm.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return refused('status', 400, parsed.error.issues[0]?.message ?? 'Choose a status.');
+		try {
+			const job = await jobs.transition(event.params.id, parsed.data.to, user.id, parsed.data.note);
+			return { action: 'status', ok: true, message: `Moved to ${statusLabels[job.status]}.` };
+		} catch (e) {
+			if (e instanceof jobs.JobRuleError)
+				return refused('status', e.code === 'not-found' ? 404 : 409, e.message);
+			throw e;
+		}
+	},
+
+	assign: async (event) => {
+		const user = requireRole(event, 'technician');
+		const parsed = assignForm.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return refused('assign', 400, 'Choose a staff member.');
+		try {
+			await jobs.assignTechnician(event.params.id, parsed.data.technicianId || null, user.id);
+			return { action: 'assign', ok: true, message: parsed.data.technicianId ? 'Assigned.' : 'Unassigned.' };
+		} catch (e) {
+			if (e instanceof jobs.JobRuleError)
+				return refused('assign', e.code === 'not-found' ? 404 : 400, e.message);
+			throw e;
+		}
+	},
+
+	consent: async (event) => {
+		const user = requireRole(event, 'technician');
+		try {
+			await jobs.recordConsent(event.params.id, user.id);
+			return { action: 'consent', ok: true, message: 'Consent to open recorded.' };
+		} catch (e) {
+			if (e instanceof jobs.JobRuleError) return refused('consent', 404, e.message);
+			throw e;
+		}
+	}
+};

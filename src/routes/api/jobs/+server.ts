@@ -1,0 +1,34 @@
+import { json } from '@sveltejs/kit';
+import { requireRole } from '$lib/server/guards';
+import * as jobs from '$lib/server/jobs/queries';
+import { symptomVocabulary } from '$lib/server/jobs/symptoms';
+import { badRequest, readJson, type Jsonify } from '$lib/server/jobs/http';
+import { listQueryFrom, makeJobIntake } from '$lib/schemas/job';
+import type { RequestHandler } from './$types';
+
+export type JobListResponse = Jsonify<jobs.JobList>;
+export type JobListRowJson = JobListResponse['rows'][number];
+export type JobCreatedResponse = { id: string; number: number; jobNumber: string };
+
+/** GET /api/jobs?q=&status=&technician=&sort=&dir=&page=&size= — unknown values fall back to defaults. */
+export const GET: RequestHandler = async (event) => {
+	requireRole(event, 'technician');
+	const list = await jobs.list(listQueryFrom(event.url.searchParams));
+	return json(list);
+};
+
+/** POST /api/jobs — the intake as JSON, validated by the intake form's own schema. */
+export const POST: RequestHandler = async (event) => {
+	const user = requireRole(event, 'technician');
+	const read = await readJson(event.request);
+	if (!read.ok) return read.response;
+	const parsed = makeJobIntake(symptomVocabulary()).safeParse(read.body);
+	if (!parsed.success) return badRequest(parsed.error);
+	const job = await jobs.create(user.id, parsed.data);
+	const body: JobCreatedResponse = {
+		id: job.id,
+		number: job.number,
+		jobNumber: jobs.formatJobNumber(job.number)
+	};
+	return json(body, { status: 201, headers: { location: `/api/jobs/${job.id}` } });
+};
