@@ -1,0 +1,16 @@
+import { hasRole } from '$lib/roles';
+import { requireUser } from '$lib/server/guards';
+import * as flowLibrary from '$lib/server/flows/queries';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireUser(event);
+	const flows = await flowLibrary.listLibrary(user.role);
+	// Files refused at start-up are the authors' business; technicians only see what is published.
+	const report = hasRole(user.role, 'senior') ? flowLibrary.lastImport() : undefined;
+	const refused = (report?.refused ?? []).map((r) => ({
+		file: r.file,
+		problems: r.problems.map((p) => flowLibrary.formatProblem(r.file, p))
+	}));
+	return { flows, refused, importError: report?.error ?? null, seesDrafts: hasRole(user.role, 'senior') };
+};
