@@ -10,6 +10,12 @@ export type NavItem = { href: string; label: string; role: Role; description?: s
 export const navItems: NavItem[] = [
 	{ href: '/', label: 'Today', role: 'technician' },
 	{
+		href: '/jobs',
+		label: 'Jobs',
+		role: 'technician',
+		description: 'Take in a phone, find a job, move it along.'
+	},
+	{
 		href: '/flows',
 		label: 'Library',
 		role: 'technician',

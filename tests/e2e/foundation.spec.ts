@@ -22,9 +22,9 @@ test('wrong credentials get one generic message, whether or not the e-mail exist
 
 test('each role sees its own navigation', async ({ browser }) => {
 	const expected = {
-		tech: ['Today', 'Library'],
-		senior: ['Today', 'Library'],
-		lead: ['Today', 'Library', 'Staff']
+		tech: ['Today', 'Jobs', 'Library'],
+		senior: ['Today', 'Jobs', 'Library'],
+		lead: ['Today', 'Jobs', 'Library', 'Staff']
 	} as const;
 	for (const who of ['tech', 'senior', 'lead'] as const) {
 		const page = await (await browser.newContext()).newPage();
