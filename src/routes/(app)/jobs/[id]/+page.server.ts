@@ -2,6 +2,7 @@ import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
+import { jobRunsSection } from '$lib/server/runs/job-section';
 import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -10,7 +11,12 @@ export const load: PageServerLoad = async (event) => {
 	const job = await jobs.get(event.params.id);
 	if (!job)
 		error(404, { message: 'No job with this id. It may have been typed wrong; find it in the job list.' });
-	return { job, staff: await jobs.assignableStaff(), created: event.url.searchParams.has('created') };
+	return {
+		job,
+		staff: await jobs.assignableStaff(),
+		created: event.url.searchParams.has('created'),
+		runs: await jobRunsSection(job) // the Runs section (src/lib/components/run/JobRuns.svelte)
+	};
 };
 
 const statusForm = z.object({
