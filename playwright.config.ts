@@ -43,7 +43,9 @@ export default defineConfig({
 			AUTH_SECRET: 'e2e-secret-e2e-secret-e2e-secret-0123456789',
 			TIDEMARK_DEMO: '1',
 			TIDEMARK_FAKES: '1', // local mail and payment services (src/lib/server/fakes)
-			DEMO_PASSWORD: 'e2e-demo-password'
+			DEMO_PASSWORD: 'e2e-demo-password',
+			// A small invented run history for tests/e2e/insights.spec.ts (src/lib/server/startup-tasks.ts).
+			TIDEMARK_DEMO_HISTORY: '300'
 		}
 	}
 });

@@ -79,6 +79,7 @@ const poll = setInterval(async () => {
 		console.log(
 			`Sign in as lead@tidemark.test, senior@tidemark.test or tech@tidemark.test — password: ${demoPassword}`
 		);
+		console.log('Insights empty on a new demo? Stop it and run: npm run demo:history -- --runs 5000');
 		console.log('Stop with Ctrl+C.\n');
 	} catch {
 		if (Date.now() - started > 120_000) clearInterval(poll);

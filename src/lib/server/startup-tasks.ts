@@ -1,5 +1,7 @@
 // Start-up tasks, registered in the order they run. Add a line here for a new one.
 import { onStartup } from '$lib/server/startup';
+import { generateHistory, historySize } from '$lib/server/insights/demo-history';
+import { warmUp as warmUpInsights } from '$lib/server/insights/queries';
 import { seedDemo } from '$lib/server/demo/seed';
 import * as flowLibrary from '$lib/server/flows/queries';
 import { startFakes, stopFakes } from '$lib/server/fakes';
@@ -31,4 +33,16 @@ onStartup('mail worker', async () => {
 	}
 	const worker = startMailWorker();
 	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void worker.stop());
+});
+
+// Keep last, after the demo seeds. TIDEMARK_DEMO_HISTORY=N (end-to-end tests) writes N invented runs
+// into an empty history; a demo without history says how to fill it; then the insights' in-process
+// copy of the facts fills in the background.
+onStartup('insights', async () => {
+	const wanted = Number(process.env.TIDEMARK_DEMO_HISTORY ?? 0);
+	const size = process.env.TIDEMARK_DEMO === '1' ? await historySize() : -1;
+	if (wanted > 0 && size === 0) await generateHistory({ runs: wanted, seed: 6, extraTechnicians: false });
+	else if (size === 0)
+		console.log('[insights] no run history yet: stop the app and run `npm run demo:history -- --runs 5000`.');
+	warmUpInsights();
 });

@@ -63,6 +63,16 @@ export async function recordRunFinished(tx: DB | Tx, runId: string): Promise<voi
 	await tx.execute(upsertFacts(sql`r.id = ${runId}`));
 }
 
+/** The same for many runs at once (the demo history writes its runs in batches). */
+export async function recordRunsFinished(tx: DB | Tx, runIds: readonly string[]): Promise<void> {
+	if (runIds.length === 0) return;
+	const list = sql.join(
+		runIds.map((id) => sql`${id}::uuid`),
+		sql`, `
+	);
+	await tx.execute(upsertFacts(sql`r.id in (${list})`));
+}
+
 /**
  * The repair's word on a verdict: records it and refreshes the run's facts in one transaction.
  * For the repair checklist; a later row for the same run replaces the earlier judgement.
