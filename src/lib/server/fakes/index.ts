@@ -31,7 +31,9 @@ export async function startFakes(): Promise<Running> {
 	const running: Running = { smtp: null, payments: null };
 	if (!fakesAllowed()) return running;
 	if (!process.env.SMTP_URL?.trim()) {
-		running.smtp = await startFakeSmtp({ dir: fakeMailboxDir() });
+		// Refuses the reserved .invalid domain (RFC 2606) with a permanent 550, like a real server
+		// refusing a domain that cannot exist, so a bounce can be shown and tested.
+		running.smtp = await startFakeSmtp({ dir: fakeMailboxDir(), rejectRecipients: /\.invalid$/i });
 		setFakeSmtpUrl(running.smtp.url);
 		console.log(
 			`[fakes] local SMTP server on ${running.smtp.url}${running.smtp.dir ? `, mailbox ${running.smtp.dir}` : ''}`
