@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from '$lib/server/runs/job-section';
+import * as photos from '$lib/server/photos/queries';
 import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -15,7 +16,8 @@ export const load: PageServerLoad = async (event) => {
 		job,
 		staff: await jobs.assignableStaff(),
 		created: event.url.searchParams.has('created'),
-		runs: await jobRunsSection(job) // the Runs section (src/lib/components/run/JobRuns.svelte)
+		runs: await jobRunsSection(job), // the Runs section (src/lib/components/run/JobRuns.svelte)
+		photos: await photos.listForJob(job.id) // the Photos section
 	};
 };
 
