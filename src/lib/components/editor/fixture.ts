@@ -1,0 +1,44 @@
+import type { FlowDefinition } from '$lib/flows/schema';
+
+/** A small flow that passes the check, for the editor's component tests. */
+export function tinyFlow(): FlowDefinition {
+	return {
+		id: 'tiny',
+		title: 'Tiny',
+		summary: 'For tests.',
+		symptoms: ['no-power'],
+		start: 'look',
+		steps: {
+			look: {
+				kind: 'symptom',
+				title: 'Look at the phone',
+				minutes: 1,
+				outcomes: [
+					{ label: 'Dry', next: 'fine' },
+					{ label: 'Wet', next: 'draw' }
+				]
+			},
+			draw: {
+				kind: 'measure',
+				title: 'Current draw',
+				minutes: 2,
+				unit: 'A',
+				domain: { min: 0 },
+				ranges: [
+					{ max: 0.5, next: 'fine', label: 'Low' },
+					{ min: 0.5, next: 'short', label: 'High' }
+				]
+			},
+			fine: {
+				kind: 'verdict',
+				title: 'No fault',
+				verdict: { code: 'fine', severity: 'no-fault', repair: '- [ ] Clean', risks: 'None.' }
+			},
+			short: {
+				kind: 'verdict',
+				title: 'Short on the board',
+				verdict: { code: 'short', severity: 'board-level', repair: '- [ ] Find it', risks: 'May return.' }
+			}
+		}
+	};
+}
