@@ -37,6 +37,6 @@ export type PhotoListResponse = { photos: PhotoDto[] };
 export type PhotoResponse = { photo: PhotoDto };
 export type PhotoErrorResponse = {
 	message: string;
-	code?: PhotoRejectionCode | 'bad-request' | 'not-found' | 'forbidden' | 'step-not-reached';
+	code?: PhotoRejectionCode | 'bad-request' | 'not-found' | 'forbidden' | 'unknown-step';
 	issues?: { path: string; message: string }[];
 };

@@ -8,6 +8,7 @@ import { getDb, type Tx } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { jobs } from '$lib/server/db/schema/jobs';
 import { runs, runSteps } from '$lib/server/db/schema/runs';
+import { flowVersions } from '$lib/server/db/schema/flows';
 import { attachments, type Attachment } from '$lib/server/db/schema/attachments';
 import { record } from '$lib/server/audit';
 import { getStore, keyOf, type BlobStore } from '$lib/server/storage';
@@ -20,13 +21,13 @@ export { PhotoRejected } from './process';
 /** A refusal that is not about the file itself: nothing was changed. */
 export class PhotoRuleError extends Error {
 	constructor(
-		readonly code: 'not-found' | 'forbidden' | 'step-not-reached',
+		readonly code: 'not-found' | 'forbidden' | 'unknown-step',
 		message: string
 	) {
 		super(message);
 	}
 	get status() {
-		return this.code === 'not-found' ? 404 : this.code === 'forbidden' ? 403 : 409;
+		return this.code === 'not-found' ? 404 : this.code === 'forbidden' ? 403 : 400;
 	}
 }
 
@@ -77,30 +78,32 @@ async function lockKeys(tx: Tx, keys: string[]) {
 }
 
 /**
- * Where a run photo goes: the run's job, the run, and the step, which must be the run's current
- * step or one it has already answered (a photo cannot belong to a step the run never reached).
+ * Where a run photo goes: the run's job, the run, and the step, which must be a step of the run's
+ * pinned flow version. A step not reached yet is accepted on purpose: the screen moves on before
+ * its answer reaches the server, and a photo of the new step must not fail in that moment.
  */
 export async function runTarget(runId: string, stepId: string): Promise<PhotoTarget> {
 	const db = await getDb();
 	const [run] = await db
-		.select({ jobId: runs.jobId, currentStep: runs.currentStep })
+		.select({
+			jobId: runs.jobId,
+			steps: sql<string[]>`array(select jsonb_object_keys(${flowVersions.definition}->'steps'))`
+		})
 		.from(runs)
+		.innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId))
 		.where(eq(runs.id, runId));
 	if (!run) throw new PhotoRuleError('not-found', 'No such run.');
-	if (stepId === run.currentStep) return { jobId: run.jobId, runId, stepId };
+	if (!run.steps.includes(stepId)) {
+		throw new PhotoRuleError('unknown-step', `The flow of this run has no step "${stepId}".`);
+	}
+	// The latest answer at that step, if it has one, ties the photo to that recorded answer.
 	const [answered] = await db
 		.select({ id: runSteps.id })
 		.from(runSteps)
 		.where(and(eq(runSteps.runId, runId), eq(runSteps.stepId, stepId)))
 		.orderBy(desc(runSteps.seq))
 		.limit(1);
-	if (!answered) {
-		throw new PhotoRuleError(
-			'step-not-reached',
-			`This run has not reached step "${stepId}"; photos belong to the current step or one already answered.`
-		);
-	}
-	return { jobId: run.jobId, runId, stepId, runStepId: answered.id };
+	return { jobId: run.jobId, runId, stepId, runStepId: answered?.id ?? null };
 }
 
 /**

@@ -264,7 +264,7 @@ describe('POST /api/jobs/:id/photos', () => {
 });
 
 describe('run photos', () => {
-	it('files a photo under the run, its step and its job; refuses a step the run has not reached', async () => {
+	it('files a photo under the run, its step and its job; refuses a step the flow does not have', async () => {
 		const run = await runs.start(jobId, FLOW, tech);
 		const pngBytes = await png(40, 40);
 		const post = (fields: Record<string, string>) =>
@@ -279,10 +279,36 @@ describe('run photos', () => {
 		const { photo } = (await ok.json()) as PhotoUploadResponse;
 		expect(photo).toMatchObject({ jobId, runId: run.id, stepId: 'power-on-as-received' });
 
+		// A step not answered yet is fine (the screen runs ahead of the server); one the flow lacks is not.
 		const ahead = await post({ stepId: 'open-and-disconnect' });
-		expect(ahead.status).toBe(409);
-		expect(((await ahead.json()) as PhotoErrorResponse).code).toBe('step-not-reached');
+		expect(ahead.status).toBe(201);
+		const unknown = await post({ stepId: 'no-such-step' });
+		expect(unknown.status).toBe(400);
+		expect(((await unknown.json()) as PhotoErrorResponse).code).toBe('unknown-step');
 		expect((await post({})).status).toBe(400);
+
+		// Once the step is answered, a photo of it is tied to that recorded answer too.
+		await runs.recordEvent(
+			run.id,
+			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: 'photo-spec-answer-1' },
+			tech
+		);
+		const later = uploadRunPhoto(
+			event(`/api/runs/${run.id}/photos`, '/api/runs/[id]/photos', {
+				...upload(await png(24, 24), 'later.png', 'image/png', { stepId: 'power-on-as-received' }),
+				params: { id: run.id }
+			})
+		);
+		const laterPhoto = ((await (await later).json()) as PhotoUploadResponse).photo;
+		const [laterRow] = await (
+			await getDb()
+		)
+			.select()
+			.from(attachments)
+			.where(eq(attachments.id, laterPhoto.id));
+		const [firstRow] = await (await getDb()).select().from(attachments).where(eq(attachments.id, photo.id));
+		expect(firstRow.runStepId).toBeNull();
+		expect(laterRow.runStepId).toEqual(expect.any(Number));
 
 		const list = (await (
 			await listRunPhotos(
@@ -291,7 +317,7 @@ describe('run photos', () => {
 				})
 			)
 		).json()) as PhotoListResponse;
-		expect(list.photos.map((p) => p.id)).toEqual([photo.id]);
+		expect(list.photos.map((p) => p.id)).toEqual([photo.id, laterPhoto.id]);
 		const forJob = (await (
 			await listJobPhotos(
 				event(`/api/jobs/${jobId}/photos`, '/api/jobs/[id]/photos', { params: { id: jobId } })

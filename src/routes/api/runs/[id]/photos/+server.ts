@@ -18,8 +18,8 @@ export const GET: RequestHandler = async (event) => {
 
 /**
  * POST /api/runs/:id/photos (multipart: file, stepId, source, caption): a photo taken at a step of
- * the run, filed on the run's job too. The step must be the current one or one already answered.
- * Same answers as POST /api/jobs/:id/photos, plus 409 for a step this run has not reached.
+ * the run, filed on the run's job too. The step must be one of the run's pinned flow version.
+ * Same answers as POST /api/jobs/:id/photos, plus 400 for a step the flow does not have.
  */
 export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'technician');
