@@ -33,9 +33,8 @@ function event(query: string, user: object | null = senior) {
 let v1: number;
 beforeAll(async () => {
 	const first = await importText(text);
-	v1 =
-		first.imported[0]?.version ??
-		(await library.highestVersion(await (await import('$lib/server/db')).getDb(), FLOW));
+	expect(first.imported).toHaveLength(1);
+	v1 = first.imported[0].version;
 	// Version 2: one title changed.
 	const changed = text.replace(/^title: .*$/m, 'title: No sound or microphone after liquid (revised)');
 	const second = await importText(changed);
