@@ -110,3 +110,23 @@ describe('PhotoGrid', () => {
 		);
 	});
 });
+
+describe('PhotoGrid customer report choice', () => {
+	it('includes a photo in the customer report, and puts the box back when the server refuses', async () => {
+		const onshow = vi
+			.fn()
+			.mockResolvedValueOnce(null)
+			.mockResolvedValueOnce('The server could not be reached; nothing was changed.');
+		render(PhotoGrid, { photos: two, onshow, canRemove: () => true });
+		await userEvent.click(screen.getByRole('button', { name: /enlarge: indicator/i }));
+		const box = screen.getByRole('checkbox', { name: 'In the customer report' });
+		expect(box).not.toBeChecked();
+		await userEvent.click(box);
+		expect(onshow).toHaveBeenLastCalledWith(two[0], true);
+		await userEvent.keyboard('{ArrowRight}');
+		const second = screen.getByRole('checkbox', { name: 'In the customer report' });
+		await userEvent.click(second);
+		await waitFor(() => expect(screen.getByRole('alert')).toHaveTextContent('nothing was changed'));
+		expect(second).not.toBeChecked();
+	});
+});
