@@ -3,7 +3,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as library from '$lib/server/flows/queries';
-import { load } from './+page.server';
+import { load as pageLoad } from './+page.server';
 
 // Real in-memory PGlite (DATA_DIR=memory://); two versions of a shipped flow imported from files.
 const FLOW = 'no-sound-after-liquid';
@@ -29,6 +29,9 @@ function event(query: string, user: object | null = senior) {
 	// eslint-disable-next-line @typescript-eslint/no-explicit-any
 	return { url, params: { id: FLOW }, locals: { user }, route: { id: '/(app)/flows/[id]/diff' } } as any;
 }
+
+type Data = Exclude<Awaited<ReturnType<typeof pageLoad>>, void>;
+const load = async (e: Parameters<typeof pageLoad>[0]) => (await pageLoad(e)) as Data;
 
 let v1: number;
 beforeAll(async () => {
