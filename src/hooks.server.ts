@@ -2,11 +2,10 @@ import { building } from '$app/environment';
 import type { ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { authHandle } from '$lib/server/auth';
-import { closeDb } from '$lib/server/db';
 import { DataDirInUseError } from '$lib/server/db/lock';
 import { headersHandle } from '$lib/server/hooks/headers';
 import { userHandle } from '$lib/server/hooks/user';
-import { startup } from '$lib/server/startup';
+import { shutdown, startup } from '$lib/server/startup';
 import '$lib/server/startup-tasks';
 
 export const init: ServerInit = async () => {
@@ -26,8 +25,9 @@ export const init: ServerInit = async () => {
 		}
 		throw e;
 	}
-	// adapter-node emits this after SIGINT/SIGTERM once the HTTP server has drained.
-	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void closeDb());
+	// adapter-node emits this after SIGINT/SIGTERM once the HTTP server has drained: stop the
+	// background work first, then close the database.
+	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void shutdown());
 };
 
 export const handle = sequence(authHandle, userHandle, headersHandle);

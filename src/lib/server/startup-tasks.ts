@@ -1,5 +1,5 @@
 // Start-up tasks, registered in the order they run. Add a line here for a new one.
-import { onStartup } from '$lib/server/startup';
+import { onShutdown, onStartup } from '$lib/server/startup';
 import { generateHistory, historySize } from '$lib/server/insights/demo-history';
 import { warmUp as warmUpInsights } from '$lib/server/insights/queries';
 import { seedDemo } from '$lib/server/demo/seed';
@@ -21,7 +21,7 @@ onStartup('flow import', async () => {
 // when its real setting (SMTP_URL, STRIPE_SECRET_KEY) is absent.
 onStartup('local fakes', async () => {
 	await startFakes();
-	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void stopFakes());
+	onShutdown('local fakes', stopFakes);
 });
 
 // Sends queued mail in the background; without an SMTP server mail waits in the queue.
@@ -32,7 +32,7 @@ onStartup('mail worker', async () => {
 		console.warn('[payments] STRIPE_WEBHOOK_SECRET is not set: payment confirmations will be refused.');
 	}
 	const worker = startMailWorker();
-	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void worker.stop());
+	onShutdown('mail worker', () => worker.stop());
 });
 
 // Keep last, after the demo seeds. TIDEMARK_DEMO_HISTORY=N (end-to-end tests) writes N invented runs

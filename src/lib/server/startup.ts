@@ -1,12 +1,13 @@
-import { getHandle } from '$lib/server/db';
+import { closeDb, getHandle } from '$lib/server/db';
 
-type Task = { name: string; run: () => Promise<void> };
+type Task = { name: string; run: () => Promise<void> | void };
 
 /**
  * Work done once before the server listens (hooks.server.ts `init`): open and migrate the database,
  * then each registered task in order. A task that fails is logged; the app still starts.
  */
 const tasks: Task[] = [];
+const stopTasks: Task[] = [];
 
 export function onStartup(name: string, run: () => Promise<void>) {
 	tasks.push({ name, run });
@@ -23,4 +24,21 @@ export async function startup() {
 			console.error(`[startup] ${task.name} failed:`, e);
 		}
 	}
+}
+
+/** Work to finish before the database closes on shutdown (background workers, local services). */
+export function onShutdown(name: string, run: () => Promise<void> | void) {
+	stopTasks.push({ name, run });
+}
+
+/** Stops what start-up began, newest first, then closes the database last. */
+export async function shutdown() {
+	for (const task of stopTasks.splice(0).reverse()) {
+		try {
+			await task.run();
+		} catch (e) {
+			console.error(`[shutdown] ${task.name} failed:`, e);
+		}
+	}
+	await closeDb();
 }
