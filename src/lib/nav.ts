@@ -32,6 +32,12 @@ export const navItems: NavItem[] = [
 		label: 'Outbox',
 		role: 'lead',
 		description: 'Every e-mail sent to customers: queued, sent or failed, and why.'
+	},
+	{
+		href: '/insights',
+		label: 'Insights',
+		role: 'lead',
+		description: 'Which verdicts come up, when, how long diagnosis takes and whether verdicts held.'
 	}
 ];
 
