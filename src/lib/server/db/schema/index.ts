@@ -8,3 +8,4 @@ export * from "./jobs";
 export * from "./runs";
 export * from "./attachments";
 export * from "./insights";
+export * from "./quotes";
