@@ -7,6 +7,8 @@ import * as flowLibrary from '$lib/server/flows/queries';
 import { startFakes, stopFakes } from '$lib/server/fakes';
 import { smtpUrl } from '$lib/server/mail/config';
 import { startMailWorker } from '$lib/server/mail/worker';
+import { seedDeviceModels } from '$lib/server/jobs/device-models';
+import { seedDemoJobs } from '$lib/server/jobs/demo';
 
 onStartup('demo seed', async () => {
 	if (process.env.TIDEMARK_DEMO === '1') await seedDemo();
@@ -15,6 +17,16 @@ onStartup('demo seed', async () => {
 // Every start, demo or not: new or changed flows/*.flow.yaml become published versions.
 onStartup('flow import', async () => {
 	await flowLibrary.importFromFiles();
+});
+
+// Reference data, not demo data: intake suggests makers and models from it in every shop.
+onStartup('device models', async () => {
+	await seedDeviceModels();
+});
+
+// A few invented jobs for the demo shop, once, when there are none.
+onStartup('demo jobs', async () => {
+	if (process.env.TIDEMARK_DEMO === '1') await seedDemoJobs();
 });
 
 // Demo and tests (TIDEMARK_DEMO=1 or TIDEMARK_FAKES=1): local mail and payment services, each only
