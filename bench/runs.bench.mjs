@@ -38,6 +38,8 @@ ensureBuild();
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-runs-bench-'));
 const port = await freePort();
 const base = `http://127.0.0.1:${port}`;
+// SvelteKit's form CSRF check compares Origin with ORIGIN, which startServer sets to localhost.
+const origin = `http://localhost:${port}`;
 const server = await startServer({
 	port,
 	dataDir,
@@ -50,7 +52,7 @@ try {
 	const api = (cookie) => async (method, url, body) => {
 		const res = await fetch(base + url, {
 			method,
-			headers: { cookie, 'content-type': 'application/json', origin: base },
+			headers: { cookie, 'content-type': 'application/json', origin },
 			body: body === undefined ? undefined : JSON.stringify(body)
 		});
 		const text = await res.text();
@@ -144,7 +146,7 @@ try {
 			url: base,
 			connections: CLIENTS,
 			duration: seconds,
-			headers: { cookie: tech, 'content-type': 'application/json', origin: base },
+			headers: { cookie: tech, 'content-type': 'application/json', origin },
 			requests: [event('ANSWER'), event('BACK')]
 		});
 		instance.on('response', (_client, _status, _bytes, ms) => times.push(ms));
@@ -161,7 +163,7 @@ async function signIn(email) {
 	const res = await fetch(`${base}/signin`, {
 		method: 'POST',
 		redirect: 'manual',
-		headers: { 'content-type': 'application/x-www-form-urlencoded', origin: base },
+		headers: { 'content-type': 'application/x-www-form-urlencoded', origin },
 		body: new URLSearchParams({ email, password: PASSWORD })
 	});
 	const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0]);

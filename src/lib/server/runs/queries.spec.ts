@@ -372,6 +372,8 @@ describe('pinned version', () => {
 		);
 		expect(r.state.currentStep).toBe('open-and-disconnect');
 		expect((await runs.get(run.id))!.flow.version).toBe(1);
+		// The stored snapshot is live: a machine restored from it (as the run screen does) moves on.
+		expect(r.state.snapshot.status).toBe('active');
 
 		// … and a new run is on version 2, where that label no longer exists.
 		const { run: fresh } = await newRun();

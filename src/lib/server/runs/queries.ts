@@ -231,6 +231,9 @@ export async function recordEvent(
 			answer = { back: { revised: 0 } };
 		}
 		const after = restored.getSnapshot();
+		// Persist before stop(): a stopped actor's snapshot says "stopped", and a machine restored
+		// from it (here or in the browser) ignores every event.
+		const snapshot = restored.getPersistedSnapshot() as Record<string, unknown>;
 		restored.stop();
 		// The checks above mirror the machine's guards; this catches any case where they disagree.
 		if (after.context.path === before.context.path)
@@ -255,7 +258,6 @@ export async function recordEvent(
 
 		const done = after.status === 'done';
 		const currentStep = String(after.value);
-		const snapshot = restored.getPersistedSnapshot() as Record<string, unknown>;
 		const verdictStep = done ? currentStep : null;
 		const verdictCode =
 			done && definition.steps[currentStep]?.kind === 'verdict'
