@@ -86,13 +86,14 @@ describe('PhotoGrid', () => {
 		}
 	});
 
-	it('toggles zoom to full size', async () => {
+	it('toggles zoom to full size, loading the original only then', async () => {
 		render(PhotoGrid, { photos: two });
 		await userEvent.click(screen.getByRole('button', { name: /enlarge: indicator/i }));
 		const zoom = screen.getByRole('button', { name: 'Zoom to full size' });
 		expect(zoom).toHaveAttribute('aria-pressed', 'false');
 		await userEvent.click(zoom);
 		expect(screen.getByRole('button', { name: 'Fit to screen' })).toHaveAttribute('aria-pressed', 'true');
+		expect(within(screen.getByRole('dialog')).getByRole('img')).toHaveAttribute('src', '/photos/a/original');
 	});
 
 	it('offers removal only where allowed, asks first, and shows a refusal', async () => {
