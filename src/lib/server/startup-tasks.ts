@@ -7,6 +7,7 @@ import * as flowLibrary from '$lib/server/flows/queries';
 import { startFakes, stopFakes } from '$lib/server/fakes';
 import { smtpUrl } from '$lib/server/mail/config';
 import { startMailWorker } from '$lib/server/mail/worker';
+import { registerJobPayments } from '$lib/server/reports/customer';
 import { seedDeviceModels } from '$lib/server/jobs/device-models';
 import { seedDemoJobs } from '$lib/server/jobs/demo';
 
@@ -34,6 +35,11 @@ onStartup('demo jobs', async () => {
 onStartup('local fakes', async () => {
 	await startFakes();
 	onShutdown('local fakes', stopFakes);
+});
+
+// Job payments: a confirmed payment updates the quote and queues the receipt (reports/customer.ts).
+onStartup('job payments', async () => {
+	registerJobPayments();
 });
 
 // Sends queued mail in the background; without an SMTP server mail waits in the queue.

@@ -318,6 +318,9 @@ export async function transition(
 			targetId: jobId,
 			details: { from: job.status, to, ...(note.trim() ? { note: note.trim() } : {}) }
 		});
+		// Customer side: "ready to collect" is queued with the move, in this transaction
+		// (src/lib/server/reports/customer.ts; imported lazily, it imports this module).
+		if (to === 'ready') await (await import('$lib/server/reports/customer')).queueReadyToCollect(t, updated);
 		return updated;
 	};
 	return tx ? work(tx) : (await getDb()).transaction(work);

@@ -2,6 +2,7 @@ import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb } from '$lib/server/db';
 import { settings } from '$lib/server/db/schema';
+import { taxSettingsSchema } from '$lib/domain/money';
 
 export const shopSchema = z.object({ name: z.string().trim().min(2).max(80) });
 export type Shop = z.infer<typeof shopSchema>;
@@ -23,3 +24,58 @@ export async function setShop(shop: Shop) {
 		.values({ key: 'shop', value })
 		.onConflictDoUpdate({ target: settings.key, set: { value, updatedAt: new Date() } });
 }
+
+// ── Money and the customer report (lead, /settings) ─────────────────────────────────────────────
+
+/** A currency Intl knows (ISO 4217), upper case. */
+const currencyCode = z
+	.string()
+	.trim()
+	.transform((c) => c.toUpperCase())
+	.refine((c) => /^[A-Z]{3}$/.test(c) && Intl.supportedValuesOf('currency').includes(c), {
+		message: 'Use a three-letter ISO 4217 currency code, e.g. EUR, GBP or USD.'
+	});
+
+/** Currency and tax for quotes: 2000 basis points = 20 %. */
+export const moneySettingsSchema = taxSettingsSchema.extend({ currency: currencyCode });
+export type MoneySettings = z.infer<typeof moneySettingsSchema>;
+
+export const DEFAULT_TERMS = `- Liquid damage can keep spreading after the phone dries: a part that works today may fail later, and we cannot promise how long a repair lasts beyond our own workmanship.
+- Please do not charge the phone or switch it on until we have spoken.
+- We never need your passcode to diagnose; some tests can only be done with the phone unlocked.
+- Phones not collected within 90 days after we tell you they are ready may be recycled.`;
+
+/** The private report link and the text every report ends with. */
+export const reportSettingsSchema = z.object({
+	linkLifetimeDays: z
+		.number()
+		.int('Whole days.')
+		.min(1, 'At least one day.')
+		.max(90, 'At most 90 days: a link should not outlive the job.'),
+	/** Markdown, sanitised when shown. */
+	terms: z.string().max(10_000, 'Keep the terms under 10,000 characters.')
+});
+export type ReportSettings = z.infer<typeof reportSettingsSchema>;
+
+const moneyDefaults: MoneySettings = { currency: 'EUR', taxRateBasisPoints: 2000, pricesIncludeTax: true };
+const reportDefaults: ReportSettings = { linkLifetimeDays: 14, terms: DEFAULT_TERMS };
+
+async function readKey<T>(key: string, schema: z.ZodType<T>, fallback: T): Promise<T> {
+	const db = await getDb();
+	const [row] = await db.select().from(settings).where(eq(settings.key, key));
+	const parsed = schema.safeParse(row?.value);
+	return parsed.success ? parsed.data : fallback;
+}
+
+async function writeKey(key: string, value: unknown) {
+	const db = await getDb();
+	await db
+		.insert(settings)
+		.values({ key, value })
+		.onConflictDoUpdate({ target: settings.key, set: { value, updatedAt: new Date() } });
+}
+
+export const getMoney = () => readKey('money', moneySettingsSchema, moneyDefaults);
+export const getReport = () => readKey('report', reportSettingsSchema, reportDefaults);
+export const setMoney = (value: MoneySettings) => writeKey('money', moneySettingsSchema.parse(value));
+export const setReport = (value: ReportSettings) => writeKey('report', reportSettingsSchema.parse(value));

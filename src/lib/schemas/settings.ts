@@ -1,0 +1,30 @@
+import { z } from 'zod';
+
+/**
+ * The lead's /settings form. The tax rate is typed as a percentage with up to two decimals and
+ * stored as basis points (20.5 % → 2050), so the stored rate is always a whole number.
+ */
+export const shopSettingsForm = z.object({
+	shopName: z.string().trim().min(2, 'At least 2 characters.').max(80, 'At most 80 characters.'),
+	currency: z
+		.string()
+		.trim()
+		.toUpperCase()
+		.regex(/^[A-Z]{3}$/, 'A three-letter ISO 4217 code, e.g. EUR, GBP or USD.'),
+	taxRatePercent: z
+		.number({ error: 'Enter the rate as a number, e.g. 20 or 7.5.' })
+		.min(0, 'The rate cannot be negative.')
+		.max(100, 'At most 100 %.')
+		.refine((n) => Number.isInteger(Math.round(n * 1e6) / 1e4), 'At most two decimals, e.g. 7.25.'),
+	pricesIncludeTax: z.boolean(),
+	linkLifetimeDays: z
+		.number({ error: 'Enter a number of days.' })
+		.int('Whole days.')
+		.min(1, 'At least one day.')
+		.max(90, 'At most 90 days.'),
+	terms: z.string().max(10_000, 'Keep the terms under 10,000 characters.')
+});
+export type ShopSettingsForm = z.infer<typeof shopSettingsForm>;
+
+export const percentToBasisPoints = (p: number) => Math.round(p * 100);
+export const basisPointsToPercent = (bp: number) => bp / 100;

@@ -1,0 +1,208 @@
+/**
+ * The customer side of a job: send the report link, take payment through the hosted checkout,
+ * apply confirmed payments (webhook), and tell the customer the phone is ready. Mail is only
+ * queued, inside the transaction of the change it reports.
+ */
+import { eq, sql } from 'drizzle-orm';
+import { getDb, type Tx } from '$lib/server/db';
+import { customers, jobs, type Job } from '$lib/server/db/schema/jobs';
+import { quotes } from '$lib/server/db/schema/quotes';
+import type { Payment, PaymentStatus } from '$lib/server/db/schema/payments';
+import { record } from '$lib/server/audit';
+import { enqueue } from '$lib/server/mail/queue';
+import { paymentReceipt, readyToCollect, reportReady, type ShopInfo } from '$lib/server/mail/templates';
+import { createCheckout } from '$lib/server/payments/checkout';
+import { onPaymentChange } from '$lib/server/payments/webhook';
+import { absoluteUrl } from '$lib/server/public-url';
+import { getReport, getShop, shopSchema } from '$lib/server/settings/queries';
+import { settings as settingsTable } from '$lib/server/db/schema/settings';
+import { formatJobNumber } from '$lib/schemas/job';
+import * as quoteQueries from '$lib/server/quotes/queries';
+import { QuoteRuleError, type PaymentKind } from '$lib/server/quotes/queries';
+import * as links from './links';
+
+export class ReportRuleError extends Error {
+	constructor(
+		public code: 'not-found' | 'no-email' | 'closed',
+		message: string
+	) {
+		super(message);
+	}
+}
+
+/**
+ * The shop's name for a mail. Inside a transaction it must be read through that transaction: on
+ * PGlite a second query outside it would wait for the transaction forever.
+ */
+async function shopInfo(tx?: Tx): Promise<ShopInfo> {
+	if (!tx) return { name: (await getShop()).name, locale: 'en-GB' };
+	const [row] = await tx.select().from(settingsTable).where(eq(settingsTable.key, 'shop'));
+	const parsed = shopSchema.safeParse(row?.value);
+	return { name: parsed.success ? parsed.data.name : 'Tidemark', locale: 'en-GB' };
+}
+
+async function customerOf(tx: Tx, job: Job) {
+	const [c] = await tx.select().from(customers).where(eq(customers.id, job.customerId));
+	return c;
+}
+
+/**
+ * "Send report": a new private link, the current draft quote marked sent, the report mail queued,
+ * and a job still in diagnosis moved to awaiting approval — all or nothing. Returns the link so the
+ * sender can also read it out or text it.
+ */
+export async function sendReport(actorId: string, jobId: string) {
+	const [settings, shop] = await Promise.all([getReport(), shopInfo()]);
+	const { transition, lockJob, JobRuleError } = await import('$lib/server/jobs/queries');
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		let job: Job;
+		try {
+			job = await lockJob(tx, jobId);
+		} catch (e) {
+			if (e instanceof JobRuleError) throw new ReportRuleError('not-found', 'No job with this id.');
+			throw e;
+		}
+		if (job.status === 'collected' || job.status === 'cancelled')
+			throw new ReportRuleError('closed', 'This job is closed; its report can no longer be sent.');
+		const customer = await customerOf(tx, job);
+		if (!customer.email)
+			throw new ReportRuleError(
+				'no-email',
+				'The customer gave no e-mail address. Print the report for them, or add an address first.'
+			);
+		const quote = await quoteQueries.markSent(tx, jobId);
+		const { token, link } = await links.create(tx, jobId, actorId, settings.linkLifetimeDays);
+		const url = absoluteUrl(`/r/${token}`);
+		const mail = reportReady({
+			shop,
+			customerName: customer.name,
+			jobNumber: formatJobNumber(job.number),
+			device: `${job.maker} ${job.model}`,
+			reportUrl: url,
+			expiresAt: link.expiresAt
+		});
+		await enqueue(tx, { to: customer.email, ...mail, related: { type: 'job', id: jobId } });
+		if (job.status === 'diagnosing')
+			await transition(jobId, 'awaiting-approval', actorId, 'Report sent to the customer', tx);
+		await record(tx, {
+			actorId,
+			action: 'report.send',
+			targetType: 'job',
+			targetId: jobId,
+			details: { linkId: link.id, quoteId: quote?.id ?? null }
+		});
+		return { url, link, quote };
+	});
+}
+
+/**
+ * Opens a hosted checkout for what the customer chose to pay, or refuses (nothing due, already
+ * paid, quote not approved). `returnPath` is the customer's page, where they come back to.
+ */
+export async function startPayment(jobId: string, quoteId: string, kind: PaymentKind, returnPath: string) {
+	const versions = await quoteQueries.listForJob(jobId);
+	const quote = quoteQueries.customerVisible(versions);
+	if (!quote || quote.id !== quoteId)
+		throw new QuoteRuleError(
+			'not-open',
+			'This quote has changed since the page was opened. Reload the page.'
+		);
+	const paid = await quoteQueries.paidForJob(jobId);
+	const option = quoteQueries.paymentOptions(quote, paid).find((o) => o.kind === kind);
+	if (!option)
+		throw new QuoteRuleError(
+			'nothing-due',
+			paid >= quote.grossMinor
+				? 'This quote is already paid in full.'
+				: 'There is nothing of that kind to pay now.'
+		);
+	const [job] = await (await getDb()).select().from(jobs).where(eq(jobs.id, jobId));
+	return createCheckout({
+		amountMinor: option.amountMinor,
+		currency: quote.currency,
+		description: `${kind === 'fee' ? 'Diagnostic fee' : 'Repair quote'}, job ${formatJobNumber(job.number)}`,
+		reference: { type: 'job', id: quoteQueries.paymentReference(jobId, quote.id, kind) },
+		successUrl: absoluteUrl(`${returnPath}?paid=1`),
+		cancelUrl: absoluteUrl(returnPath)
+	});
+}
+
+/**
+ * Webhook effect for job payments, inside the webhook's transaction: the quote's paid amount
+ * follows the payment (a refund takes it back), and a receipt is queued for a confirmed payment.
+ */
+export async function applyJobPayment(tx: Tx, payment: Payment, previous: PaymentStatus) {
+	const ref = quoteQueries.parsePaymentReference(payment.referenceId);
+	if (!ref) return;
+	const delta =
+		payment.status === 'paid' && previous !== 'paid'
+			? payment.amountMinor
+			: payment.status === 'refunded' && previous === 'paid'
+				? -payment.amountMinor
+				: 0;
+	if (delta === 0) return;
+	const [quote] = await tx
+		.update(quotes)
+		.set({
+			paidMinor: sql`greatest(${quotes.paidMinor} + ${delta}, 0)`,
+			updatedAt: new Date()
+		})
+		.where(eq(quotes.id, ref.quoteId))
+		.returning();
+	if (!quote || quote.jobId !== ref.jobId) throw new Error(`Payment ${payment.id} names an unknown quote.`);
+	const paidTotal = await quoteQueries.paidForJob(ref.jobId, tx);
+	await tx
+		.update(quotes)
+		.set({ paidAt: paidTotal >= quote.grossMinor ? (quote.paidAt ?? new Date()) : null })
+		.where(eq(quotes.id, quote.id));
+	await record(tx, {
+		actorId: null,
+		action: delta > 0 ? 'quote.paid' : 'quote.refunded',
+		targetType: 'job',
+		targetId: ref.jobId,
+		details: { paymentId: payment.id, quoteId: quote.id, amountMinor: payment.amountMinor, paidTotal }
+	});
+	if (delta < 0) return;
+	const [job] = await tx.select().from(jobs).where(eq(jobs.id, ref.jobId));
+	const customer = await customerOf(tx, job);
+	if (!customer?.email) return;
+	const mail = paymentReceipt({
+		shop: await shopInfo(tx),
+		customerName: customer.name,
+		jobNumber: formatJobNumber(job.number),
+		description: payment.description,
+		amountMinor: payment.amountMinor,
+		currency: payment.currency,
+		paidAt: payment.paidAt ?? new Date(),
+		paymentRef: payment.id
+	});
+	await enqueue(tx, { to: customer.email, ...mail, related: { type: 'job', id: ref.jobId } });
+}
+
+const g = globalThis as unknown as { __tidemarkJobPayments?: () => void };
+/** Registers the webhook effect once per process (start-up task, and tests). */
+export function registerJobPayments() {
+	g.__tidemarkJobPayments ??= onPaymentChange('job', applyJobPayment);
+}
+
+/**
+ * Queues "ready to collect" when a job reaches `ready` (called from jobs.transition inside its
+ * transaction). Without an e-mail address there is nothing to send.
+ */
+export async function queueReadyToCollect(tx: Tx, job: Job) {
+	const customer = await customerOf(tx, job);
+	if (!customer?.email) return;
+	const quote = quoteQueries.customerVisible(await quoteQueries.listForJob(job.id, tx));
+	const paid = await quoteQueries.paidForJob(job.id, tx);
+	const due = quote && quote.status === 'approved' ? Math.max(quote.grossMinor - paid, 0) : 0;
+	const mail = readyToCollect({
+		shop: await shopInfo(tx),
+		customerName: customer.name,
+		jobNumber: formatJobNumber(job.number),
+		device: `${job.maker} ${job.model}`,
+		amountDueMinor: due,
+		currency: quote?.currency
+	});
+	await enqueue(tx, { to: customer.email, ...mail, related: { type: 'job', id: job.id } });
+}

@@ -1,0 +1,193 @@
+/**
+ * The findings report of a job, in two cuts from one builder: `staff` (the counter print-out) and
+ * `customer` (the private link). The customer cut names no staff member, shows no internal notes,
+ * no other job, and only the last four digits of the IMEI.
+ */
+import { and, asc, desc, eq } from 'drizzle-orm';
+import { getDb } from '$lib/server/db';
+import { runs } from '$lib/server/db/schema/runs';
+import { flowVersions } from '$lib/server/db/schema/flows';
+import { attachments } from '$lib/server/db/schema/attachments';
+import * as jobQueries from '$lib/server/jobs/queries';
+import * as quoteQueries from '$lib/server/quotes/queries';
+import { getMoney, getReport, getShop } from '$lib/server/settings/queries';
+import { formatJobNumber, liquidLabels, symptomLabel } from '$lib/schemas/job';
+import { quoteTotals, type QuoteLine } from '$lib/domain/money';
+import type { FlowDefinition, Severity } from '$lib/flows/schema';
+import type { Quote } from '$lib/server/db/schema/quotes';
+
+export type Audience = 'staff' | 'customer';
+
+/** The verdict in words a customer understands. */
+export const severityForCustomer: Record<Severity, string> = {
+	'no-fault': 'We found no fault.',
+	repair: 'The phone can be repaired by cleaning and repairing the affected parts.',
+	replace: 'A part of the phone needs to be replaced.',
+	'board-level': 'The main board needs a repair at component level.',
+	uneconomic: 'A repair would probably cost more than the phone is worth.'
+};
+
+export type ReportQuote = {
+	id: string;
+	version: number;
+	status: Quote['status'];
+	lines: (QuoteLine & { lineMinor: number })[];
+	proposal: string;
+	currency: string;
+	taxRateBasisPoints: number;
+	pricesIncludeTax: boolean;
+	netMinor: number;
+	taxMinor: number;
+	grossMinor: number;
+	approvedName: string | null;
+	approvedAt: Date | null;
+	declinedName: string | null;
+	declinedAt: Date | null;
+};
+
+export type Report = {
+	audience: Audience;
+	shop: { name: string };
+	job: {
+		id: string;
+		number: string;
+		device: string;
+		identifier: string;
+		identifierLabel: string;
+		customerName: string;
+		takenIn: Date;
+		status: string;
+	};
+	reported: { symptoms: string[]; liquid: string; when: Date | null; submerged: boolean };
+	verdict: {
+		title: string;
+		severity: Severity;
+		inWords: string;
+		risks: string;
+		parts: string[];
+		dataReachable: boolean | null;
+		reachedAt: Date | null;
+	} | null;
+	photos: { id: string; caption: string; width: number; height: number; url: string; thumbUrl: string }[];
+	quote: ReportQuote | null;
+	/** True when a newer draft is being prepared (customer cut: no price shown meanwhile). */
+	quoteRevising: boolean;
+	paidMinor: number;
+	currency: string;
+	terms: string;
+};
+
+/** "•••• 1234": enough for the customer to recognise their phone, useless to anyone else. */
+export function maskIdentifier(value: string) {
+	return `•••• ${value.slice(-4)}`;
+}
+
+function toReportQuote(q: Quote): ReportQuote {
+	const totals = quoteTotals(q.lines as QuoteLine[], q);
+	return {
+		id: q.id,
+		version: q.version,
+		status: q.status,
+		lines: totals.lines,
+		proposal: q.proposal,
+		currency: q.currency,
+		taxRateBasisPoints: q.taxRateBasisPoints,
+		pricesIncludeTax: q.pricesIncludeTax,
+		netMinor: q.netMinor,
+		taxMinor: q.taxMinor,
+		grossMinor: q.grossMinor,
+		approvedName: q.approvedName,
+		approvedAt: q.approvedAt,
+		declinedName: q.declinedName,
+		declinedAt: q.declinedAt
+	};
+}
+
+/**
+ * Builds the report of one job. `photoBase` is where the customer cut's images are served
+ * (e.g. `/r/<token>/photos`); the staff cut uses the signed-in photo route.
+ */
+export async function build(jobId: string, audience: Audience, photoBase = ''): Promise<Report | null> {
+	const job = await jobQueries.get(jobId);
+	if (!job) return null;
+	const db = await getDb();
+	const [shop, money, settings, versions, paidMinor] = await Promise.all([
+		getShop(),
+		getMoney(),
+		getReport(),
+		quoteQueries.listForJob(jobId),
+		quoteQueries.paidForJob(jobId)
+	]);
+
+	const [run] = await db
+		.select({
+			verdictStep: runs.verdictStep,
+			dataReachable: runs.dataReachable,
+			finishedAt: runs.finishedAt,
+			definition: flowVersions.definition
+		})
+		.from(runs)
+		.innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId))
+		.where(and(eq(runs.jobId, jobId), eq(runs.status, 'completed')))
+		.orderBy(desc(runs.finishedAt))
+		.limit(1);
+	let verdict: Report['verdict'] = null;
+	const step = run?.verdictStep ? (run.definition as FlowDefinition).steps[run.verdictStep] : undefined;
+	if (run && step?.kind === 'verdict') {
+		verdict = {
+			title: step.title,
+			severity: step.verdict.severity,
+			inWords: severityForCustomer[step.verdict.severity],
+			risks: step.verdict.risks,
+			parts: step.verdict.parts ?? [],
+			dataReachable: run.dataReachable,
+			reachedAt: run.finishedAt
+		};
+	}
+
+	const shown = await db
+		.select({
+			id: attachments.id,
+			caption: attachments.caption,
+			width: attachments.width,
+			height: attachments.height
+		})
+		.from(attachments)
+		.where(and(eq(attachments.jobId, jobId), eq(attachments.shownToCustomer, true)))
+		.orderBy(asc(attachments.createdAt), asc(attachments.id));
+	const base = audience === 'customer' ? photoBase : '/photos';
+
+	const visible = audience === 'customer' ? quoteQueries.customerVisible(versions) : (versions[0] ?? null);
+	const identifier = job.imei ?? job.serial ?? '';
+	return {
+		audience,
+		shop: { name: shop.name },
+		job: {
+			id: job.id,
+			number: formatJobNumber(job.number),
+			device: `${job.maker} ${job.model}`,
+			identifier: audience === 'customer' ? maskIdentifier(identifier) : identifier,
+			identifierLabel: job.imei ? 'IMEI' : 'Serial number',
+			customerName: job.customer.name,
+			takenIn: job.createdAt,
+			status: job.status
+		},
+		reported: {
+			symptoms: job.symptoms.map(symptomLabel),
+			liquid: liquidLabels[job.liquid],
+			when: job.exposedAt,
+			submerged: job.submerged
+		},
+		verdict,
+		photos: shown.map((p) => ({
+			...p,
+			url: `${base}/${p.id}/display`,
+			thumbUrl: `${base}/${p.id}/thumb`
+		})),
+		quote: visible ? toReportQuote(visible) : null,
+		quoteRevising: audience === 'customer' && !visible && versions.length > 0,
+		paidMinor,
+		currency: visible?.currency ?? money.currency,
+		terms: settings.terms
+	};
+}
