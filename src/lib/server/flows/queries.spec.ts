@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { afterAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { auditLog, flows, flowVersions } from '$lib/server/db/schema';
@@ -22,6 +22,11 @@ function folder(files: Record<string, string>) {
 	for (const [name, text] of Object.entries(files)) fs.writeFileSync(path.join(dir, name), text);
 	return dir;
 }
+
+// Opening and migrating the database takes seconds on a busy machine: do it under the hook timeout.
+beforeAll(async () => {
+	await getDb();
+});
 
 afterAll(() => {
 	for (const dir of tmpDirs) fs.rmSync(dir, { recursive: true, force: true });

@@ -1,0 +1,330 @@
+/**
+ * The life of a flow version: draft → in review → published (N+1, immutable) → retired.
+ * Seniors and leads author; another senior or a lead reviews (four eyes). Every change is audited
+ * in the same transaction. Routes map FlowAuthoringError codes to HTTP: not-found 404, forbidden 403,
+ * conflict 409, state 409, invalid 400.
+ */
+import { and, eq, sql } from 'drizzle-orm';
+import { getDb, type Tx } from '$lib/server/db';
+import { auditLog, flows, flowVersions } from '$lib/server/db/schema';
+import { record } from '$lib/server/audit';
+import { checkFlow, type FlowProblem } from '$lib/flows/check';
+import { schemaProblems } from '$lib/flows/problems';
+import { flowSchema, type FlowDefinition } from '$lib/flows/schema';
+import { hasRole, type Role } from '$lib/roles';
+import { definitionColumns, highestVersion, withStepOrder, type StoredVersion } from './queries';
+
+export type Actor = { id: string; role: Role };
+export type AuthoringErrorCode = 'not-found' | 'forbidden' | 'conflict' | 'state' | 'invalid';
+
+export class FlowAuthoringError extends Error {
+	constructor(
+		public code: AuthoringErrorCode,
+		message: string,
+		public problems: FlowProblem[] = [],
+		/** On a save conflict: the draft as it is now, so the editor can offer a clear choice. */
+		public current?: StoredVersion
+	) {
+		super(message);
+	}
+}
+
+function assertSenior(actor: Actor) {
+	if (!hasRole(actor.role, 'senior'))
+		throw new FlowAuthoringError('forbidden', 'Only senior technicians and leads author and review flows.');
+}
+
+/** Shape check only: a draft may still have graph problems, but it must be a flow. */
+function validShape(input: unknown): FlowDefinition {
+	const parsed = flowSchema.safeParse(input);
+	if (!parsed.success)
+		throw new FlowAuthoringError(
+			'invalid',
+			'The draft is not a flow yet; fix the fields marked.',
+			schemaProblems(parsed.error)
+		);
+	return parsed.data;
+}
+
+async function lockVersion(tx: Tx, id: string): Promise<StoredVersion> {
+	const [row] = await tx.select().from(flowVersions).where(eq(flowVersions.id, id)).for('update');
+	if (!row) throw new FlowAuthoringError('not-found', 'No such draft or version.');
+	return withStepOrder(row);
+}
+
+function assertStatus(row: StoredVersion, status: StoredVersion['status'], doing: string) {
+	if (row.status === status) return;
+	const now =
+		row.status === 'published' || row.status === 'retired'
+			? `version ${row.version} is ${row.status}`
+			: `it is ${row.status}`;
+	throw new FlowAuthoringError(
+		'state',
+		`Cannot ${doing}: ${now}. Published versions never change; start a new draft instead.`
+	);
+}
+
+/** A new draft: a copy of a published (or retired) version, or a new flow from a definition. */
+export async function createDraft(
+	actor: Actor,
+	input: { fromVersionId: string } | { definition: unknown }
+): Promise<StoredVersion> {
+	assertSenior(actor);
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		let definition: FlowDefinition;
+		let basedOnId: string | null = null;
+		if ('fromVersionId' in input) {
+			const [from] = await tx.select().from(flowVersions).where(eq(flowVersions.id, input.fromVersionId));
+			if (!from || from.version === null)
+				throw new FlowAuthoringError(
+					'not-found',
+					'Drafts start from a published version; that one does not exist.'
+				);
+			definition = withStepOrder(from).definition;
+			basedOnId = from.id;
+		} else {
+			definition = validShape(input.definition);
+			const inserted = await tx
+				.insert(flows)
+				.values({ id: definition.id, title: definition.title, symptoms: definition.symptoms })
+				.onConflictDoNothing()
+				.returning({ id: flows.id });
+			if (inserted.length === 0)
+				throw new FlowAuthoringError(
+					'conflict',
+					`A flow with the id "${definition.id}" already exists; start a draft from its published version, or choose another id.`
+				);
+		}
+		const [row] = await tx
+			.insert(flowVersions)
+			.values({
+				flowId: definition.id,
+				status: 'draft',
+				authorId: actor.id,
+				basedOnId,
+				...definitionColumns(definition)
+			})
+			.returning();
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.draft.create',
+			targetType: 'flow',
+			targetId: definition.id,
+			details: { draftId: row.id, basedOnId }
+		});
+		return withStepOrder(row);
+	});
+}
+
+/**
+ * Saves a draft if nobody saved it since `revision` was read; otherwise a conflict carrying the
+ * draft as it is now. Returns the new revision.
+ */
+export async function saveDraft(
+	actor: Actor,
+	draftId: string,
+	input: { revision: number; definition: unknown; changelog?: string | null }
+): Promise<StoredVersion> {
+	assertSenior(actor);
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const row = await lockVersion(tx, draftId);
+		assertStatus(row, 'draft', 'edit this');
+		if (row.revision !== input.revision)
+			throw new FlowAuthoringError(
+				'conflict',
+				'Someone saved this draft after you opened it. Load their version, or save yours over it knowingly.',
+				[],
+				row
+			);
+		const definition = validShape(input.definition);
+		if (definition.id !== row.flowId)
+			throw new FlowAuthoringError(
+				'invalid',
+				`A draft keeps its flow's id "${row.flowId}"; start a new flow for a new id.`,
+				[{ code: 'schema', path: ['id'], message: `The id must stay "${row.flowId}".` }]
+			);
+		const [saved] = await tx
+			.update(flowVersions)
+			.set({
+				...definitionColumns(definition),
+				...(input.changelog !== undefined && { changelog: input.changelog }),
+				revision: row.revision + 1,
+				updatedAt: new Date()
+			})
+			.where(eq(flowVersions.id, draftId))
+			.returning();
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.draft.save',
+			targetType: 'flow',
+			targetId: row.flowId,
+			details: { draftId, revision: saved.revision }
+		});
+		return withStepOrder(saved);
+	});
+}
+
+/** Hands a draft to review; only a draft that passes the check. */
+export async function submit(actor: Actor, draftId: string): Promise<StoredVersion> {
+	assertSenior(actor);
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const row = await lockVersion(tx, draftId);
+		assertStatus(row, 'draft', 'submit this');
+		const check = checkFlow(row.definition);
+		if (!check.ok)
+			throw new FlowAuthoringError(
+				'invalid',
+				`The draft has ${check.problems.length} problem${check.problems.length === 1 ? '' : 's'}; fix them before review.`,
+				check.problems
+			);
+		const [updated] = await tx
+			.update(flowVersions)
+			.set({
+				status: 'in-review',
+				submittedAt: new Date(),
+				updatedAt: new Date(),
+				revision: row.revision + 1
+			})
+			.where(eq(flowVersions.id, draftId))
+			.returning();
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.submit',
+			targetType: 'flow',
+			targetId: row.flowId,
+			details: { draftId }
+		});
+		return withStepOrder(updated);
+	});
+}
+
+/** Nobody reviews a draft they wrote or saved: the author and every editor are excluded. */
+async function assertFourEyes(tx: Tx, actor: Actor, row: StoredVersion, doing: string) {
+	if (row.authorId === actor.id)
+		throw new FlowAuthoringError(
+			'forbidden',
+			`You wrote this draft, so you cannot ${doing} it: another senior or a lead reviews it.`
+		);
+	const [edited] = await tx
+		.select({ id: auditLog.id })
+		.from(auditLog)
+		.where(
+			and(
+				eq(auditLog.action, 'flow.draft.save'),
+				eq(auditLog.actorId, actor.id),
+				sql`${auditLog.details}->>'draftId' = ${row.id}`
+			)
+		)
+		.limit(1);
+	if (edited)
+		throw new FlowAuthoringError(
+			'forbidden',
+			`You edited this draft, so you cannot ${doing} it: another senior or a lead reviews it.`
+		);
+}
+
+/** Approval publishes the draft as the flow's next version number. */
+export async function approve(actor: Actor, draftId: string): Promise<StoredVersion> {
+	assertSenior(actor);
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const row = await lockVersion(tx, draftId);
+		assertStatus(row, 'in-review', 'approve this');
+		await assertFourEyes(tx, actor, row, 'approve');
+		const check = checkFlow(row.definition);
+		if (!check.ok)
+			throw new FlowAuthoringError('invalid', 'The draft no longer passes the check.', check.problems);
+		// The flow row is the lock that makes "highest + 1" safe against a concurrent approval.
+		await tx.select({ id: flows.id }).from(flows).where(eq(flows.id, row.flowId)).for('update');
+		const version = (await highestVersion(tx, row.flowId)) + 1;
+		const now = new Date();
+		const [published] = await tx
+			.update(flowVersions)
+			.set({ status: 'published', version, reviewerId: actor.id, publishedAt: now, updatedAt: now })
+			.where(eq(flowVersions.id, draftId))
+			.returning();
+		await tx
+			.update(flows)
+			.set({ title: row.definition.title, symptoms: row.definition.symptoms })
+			.where(eq(flows.id, row.flowId));
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.approve',
+			targetType: 'flow',
+			targetId: row.flowId,
+			details: { draftId }
+		});
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.publish',
+			targetType: 'flow',
+			targetId: row.flowId,
+			details: { draftId, version, checksum: row.checksum }
+		});
+		return withStepOrder(published);
+	});
+}
+
+/** Back to the author as a draft, with the reviewer's comment. */
+export async function sendBack(actor: Actor, draftId: string, comment: string): Promise<StoredVersion> {
+	assertSenior(actor);
+	const text = comment.trim();
+	if (!text) throw new FlowAuthoringError('invalid', 'Say what needs changing, so the author knows.');
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const row = await lockVersion(tx, draftId);
+		assertStatus(row, 'in-review', 'send this back');
+		await assertFourEyes(tx, actor, row, 'send back');
+		const [updated] = await tx
+			.update(flowVersions)
+			.set({
+				status: 'draft',
+				reviewComment: text,
+				reviewerId: actor.id,
+				revision: row.revision + 1,
+				updatedAt: new Date()
+			})
+			.where(eq(flowVersions.id, draftId))
+			.returning();
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.send-back',
+			targetType: 'flow',
+			targetId: row.flowId,
+			details: { draftId, comment: text }
+		});
+		return withStepOrder(updated);
+	});
+}
+
+/** No new runs start on a retired version; runs already under way finish on it. */
+export async function retire(actor: Actor, flowId: string, version: number): Promise<StoredVersion> {
+	assertSenior(actor);
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const [found] = await tx
+			.select({ id: flowVersions.id })
+			.from(flowVersions)
+			.where(and(eq(flowVersions.flowId, flowId), eq(flowVersions.version, version)));
+		if (!found) throw new FlowAuthoringError('not-found', `Flow "${flowId}" has no version ${version}.`);
+		const row = await lockVersion(tx, found.id);
+		assertStatus(row, 'published', 'retire this');
+		const now = new Date();
+		const [retired] = await tx
+			.update(flowVersions)
+			.set({ status: 'retired', retiredAt: now, updatedAt: now })
+			.where(eq(flowVersions.id, row.id))
+			.returning();
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.retire',
+			targetType: 'flow',
+			targetId: flowId,
+			details: { version }
+		});
+		return withStepOrder(retired);
+	});
+}
