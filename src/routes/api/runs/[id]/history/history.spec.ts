@@ -23,10 +23,12 @@ beforeAll(async () => {
 
 describe('GET /api/runs/:id/history', () => {
 	it('answers 401 signed out', async () => {
-		const e = await call('x', '', null).then(
-			() => undefined,
-			(err: { status: number }) => err
-		);
+		const e = await Promise.resolve()
+			.then(() => call('x', '', null))
+			.then(
+				() => undefined,
+				(err: { status: number }) => err
+			);
 		expect(e?.status).toBe(401);
 	});
 
