@@ -6,6 +6,7 @@ import { eq } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { auditLog, flows, flowVersions } from '$lib/server/db/schema';
 import * as staff from '$lib/server/staff/queries';
+import { toFlowYaml } from '$lib/flows/to-yaml';
 import * as library from './queries';
 import { definitionColumns } from './queries';
 
@@ -118,6 +119,17 @@ describe('import of flow files', () => {
 			'restart-loop-after-liquid@1',
 			'restart-loop-after-liquid@2'
 		]);
+	});
+
+	it('export then import yields the same checksum: a downloaded version re-imports as nothing new', async () => {
+		const current = (await library.currentPublished('restart-loop-after-liquid'))!;
+		const text = toFlowYaml(current.definition);
+		const report = await library.importFromFiles(folder({ 'restart-loop-after-liquid.flow.yaml': text }));
+		expect(report).toMatchObject({
+			imported: [],
+			unchanged: ['restart-loop-after-liquid.flow.yaml'],
+			refused: []
+		});
 	});
 
 	it('survives a missing folder', async () => {
