@@ -1,0 +1,60 @@
+import { json } from '@sveltejs/kit';
+import type { FlowDefinition } from '$lib/flows/schema';
+import { requireRole } from '$lib/server/guards';
+import * as authoring from '$lib/server/flows/authoring';
+import type { RequestHandler } from './$types';
+import { FlowAuthoringError, statusOf } from './errors';
+import { draftParams, MAX_SAVE_BYTES, saveBody } from './schema';
+
+/** The editor's autosave answers. */
+export type SaveResponse =
+	| { revision: number }
+	| { message: string; current?: { revision: number; definition: FlowDefinition; by: string | null } }
+	| { message: string; issues?: { path?: (string | number)[]; message: string }[] };
+
+/** PUT: autosave of a draft with optimistic locking (409 with the draft as it is now). */
+export const PUT: RequestHandler = async (event) => {
+	const user = requireRole(event, 'senior');
+	const params = draftParams.safeParse(event.params);
+	if (!params.success) return json({ message: 'No such draft.' } satisfies SaveResponse, { status: 404 });
+	const size = Number(event.request.headers.get('content-length') ?? 0);
+	if (size > MAX_SAVE_BYTES)
+		return json({ message: `The draft is too large to save (${size} bytes).` } satisfies SaveResponse, {
+			status: 413
+		});
+	let raw: unknown;
+	try {
+		raw = await event.request.json();
+	} catch {
+		return json({ message: 'The draft must be sent as JSON.' } satisfies SaveResponse, { status: 400 });
+	}
+	const body = saveBody.safeParse(raw);
+	if (!body.success)
+		return json(
+			{
+				message: 'The save was not understood.',
+				issues: body.error.issues.map((i) => ({ path: i.path as (string | number)[], message: i.message }))
+			} satisfies SaveResponse,
+			{ status: 400 }
+		);
+	try {
+		const saved = await authoring.saveDraft({ id: user.id, role: user.role }, params.data.draftId, body.data);
+		return json({ revision: saved.revision } satisfies SaveResponse);
+	} catch (e) {
+		if (!(e instanceof FlowAuthoringError)) throw e;
+		const current =
+			e.code === 'conflict' && e.current
+				? { revision: e.current.revision, definition: e.current.definition, by: null }
+				: undefined;
+		return json(
+			{
+				message: e.message,
+				...(current && { current }),
+				...(e.problems.length && {
+					issues: e.problems.map((p) => ({ path: p.path, message: p.message }))
+				})
+			} satisfies SaveResponse,
+			{ status: statusOf(e) }
+		);
+	}
+};

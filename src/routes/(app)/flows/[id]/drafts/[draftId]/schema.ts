@@ -1,0 +1,17 @@
+import { z } from 'zod';
+import { MAX_FLOW_CHARS } from '$lib/flows/parse';
+import { kebabId } from '$lib/flows/schema';
+
+export const draftParams = z.object({
+	id: kebabId,
+	draftId: z.uuid({ error: 'No such draft.' })
+});
+
+/** An autosave: the revision the editor started from and the whole definition (shape-checked later). */
+export const saveBody = z.object({
+	revision: z.number().int().min(1),
+	definition: z.record(z.string(), z.unknown())
+});
+
+/** Bytes an autosave may send: the largest flow file allowed, with room for JSON's quoting. */
+export const MAX_SAVE_BYTES = MAX_FLOW_CHARS * 2;
