@@ -18,7 +18,7 @@ export const passcodeStatuses = ['given', 'withheld', 'not-needed'] as const;
 export type PasscodeStatus = (typeof passcodeStatuses)[number];
 
 export const passcodeLabels: Record<PasscodeStatus, string> = {
-	given: 'Given by the customer (kept by the customer’s paperwork, not here)',
+	given: 'Given by the customer',
 	withheld: 'Withheld by the customer',
 	'not-needed': 'Not needed'
 };
@@ -59,6 +59,9 @@ const optionalNumber = (max: number, what: string) =>
 		.max(max, `That is more than ${max}; check the ${what}.`)
 		.optional();
 
+const LIQUID_MESSAGE = 'Choose the liquid (or “Unknown”).';
+const PASSCODE_MESSAGE = 'Choose whether the customer gave the passcode, withheld it, or it is not needed.';
+
 const intakeShape = {
 	customerName: z
 		.string()
@@ -87,7 +90,8 @@ const intakeShape = {
 	imei: z.string().trim().max(40, 'An IMEI has 15 digits.').default(''),
 	serial: z.string().trim().max(40, 'Use at most 40 characters.').default(''),
 	symptoms: z.array(z.string().max(60)).max(20, 'Choose at most 20 symptoms.').default([]),
-	liquid: z.enum(liquidKinds, { error: 'Choose the liquid (or “Unknown”).' }),
+	// Nullable, not defaulted: a form that never touched these must fail, not take the first choice.
+	liquid: z.enum(liquidKinds, { error: LIQUID_MESSAGE }).nullable(),
 	/** '' when the customer does not know when it happened. */
 	exposedAt: z
 		.string()
@@ -106,7 +110,7 @@ const intakeShape = {
 	declaredDepthM: optionalNumber(1000, 'declared depth'),
 	declaredMinutes: optionalNumber(100_000, 'declared minutes'),
 	dataFirst: z.boolean().default(false),
-	passcodeStatus: z.enum(passcodeStatuses, { error: 'Choose whether the customer gave the passcode.' }),
+	passcodeStatus: z.enum(passcodeStatuses, { error: PASSCODE_MESSAGE }).nullable(),
 	consentToOpen: z.boolean().default(false),
 	notes: z.string().trim().max(4000, 'Keep notes under 4000 characters.').default('')
 };
@@ -130,8 +134,8 @@ export function ratingOf(
 
 export function exposureOf(v: Pick<IntakeShape, 'liquid' | 'submerged' | 'depthM' | 'minutes'>): Exposure {
 	return v.submerged
-		? { liquid: v.liquid, submerged: true, depthM: v.depthM, minutes: v.minutes }
-		: { liquid: v.liquid, submerged: false };
+		? { liquid: v.liquid ?? 'unknown', submerged: true, depthM: v.depthM, minutes: v.minutes }
+		: { liquid: v.liquid ?? 'unknown', submerged: false };
 }
 
 /** The exposure time as an instant, or null when unknown. */
@@ -149,6 +153,9 @@ export function exposedAtOf(v: Pick<IntakeShape, 'exposedAt' | 'tzOffsetMin'>): 
 export function makeJobIntake(symptomVocabulary?: readonly string[]) {
 	const known = symptomVocabulary ? new Set(symptomVocabulary) : null;
 	return z.object(intakeShape).superRefine((v, ctx) => {
+		if (v.liquid === null) ctx.addIssue({ code: 'custom', path: ['liquid'], message: LIQUID_MESSAGE });
+		if (v.passcodeStatus === null)
+			ctx.addIssue({ code: 'custom', path: ['passcodeStatus'], message: PASSCODE_MESSAGE });
 		if (!v.customerEmail && !v.customerPhone) {
 			const message = 'Give an e-mail address or a phone number (or both).';
 			ctx.addIssue({ code: 'custom', path: ['customerEmail'], message });

@@ -32,7 +32,7 @@ export { formatJobNumber } from '$lib/schemas/job';
 /** A refusal the caller shows to the user: nothing was changed. */
 export class JobRuleError extends Error {
 	constructor(
-		public code: 'not-found' | 'invalid-transition' | 'not-a-technician',
+		public code: 'not-found' | 'invalid-transition' | 'not-a-technician' | 'invalid-input',
 		message: string,
 		public field?: string
 	) {
@@ -43,6 +43,11 @@ export class JobRuleError extends Error {
 export { nextStatuses };
 
 export async function create(actorId: string | null, input: JobIntake): Promise<Job> {
+	// The schema refuses these as null; checked again so the columns' NOT NULL is never the message.
+	const { liquid, passcodeStatus } = input;
+	if (liquid === null) throw new JobRuleError('invalid-input', 'Choose the liquid.', 'liquid');
+	if (passcodeStatus === null)
+		throw new JobRuleError('invalid-input', 'Choose the passcode status.', 'passcodeStatus');
 	const db = await getDb();
 	const rating = ratingOf(input);
 	const exposure = exposureOf(input);
@@ -66,7 +71,7 @@ export async function create(actorId: string | null, input: JobIntake): Promise<
 				imei: input.imei ? normaliseImei(input.imei) : null,
 				serial: input.serial ? normaliseSerial(input.serial) : null,
 				symptoms: [...new Set(input.symptoms)],
-				liquid: input.liquid,
+				liquid,
 				exposedAt: exposedAtOf(input),
 				submerged: input.submerged,
 				depthM: exposure.submerged ? (exposure.depthM ?? null) : null,
@@ -74,7 +79,7 @@ export async function create(actorId: string | null, input: JobIntake): Promise<
 				rating,
 				exposureAssessment: assessment,
 				dataFirst: input.dataFirst,
-				passcodeStatus: input.passcodeStatus,
+				passcodeStatus,
 				consentToOpen: input.consentToOpen,
 				consentAt: input.consentToOpen ? now : null,
 				notes: input.notes.trim(),

@@ -105,6 +105,18 @@ describe('POST /api/jobs', () => {
 		expect(body.issues.find((i) => i.path === 'imei')!.message).toMatch(/check digit/);
 	});
 
+	it('never assumes a passcode status or a liquid: missing or null is a 400 at that field', async () => {
+		for (const missing of [
+			{ passcodeStatus: undefined, liquid: undefined },
+			{ passcodeStatus: null, liquid: null }
+		]) {
+			const res = await createJob(event('/api/jobs', json({ ...valid, ...missing })));
+			expect(res.status).toBe(400);
+			const body = (await res.json()) as { issues: { path: string }[] };
+			expect(body.issues.map((i) => i.path)).toEqual(expect.arrayContaining(['passcodeStatus', 'liquid']));
+		}
+	});
+
 	it('answers 400 for a body that is not JSON, and 400 for an IP68 declaration no stricter than IP67', async () => {
 		expect((await createJob(event('/api/jobs', { method: 'POST', body: 'not json' }))).status).toBe(400);
 		// IEC 60529: digit 8 must be harsher than digit 7's 1 m for 30 min.

@@ -5,6 +5,8 @@ import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from '$lib/server/runs/job-section';
 import * as photos from '$lib/server/photos/queries';
 import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
+import { customerSection } from '$lib/server/reports/job-section';
+import * as quoteActions from '$lib/server/reports/job-actions';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -17,7 +19,8 @@ export const load: PageServerLoad = async (event) => {
 		staff: await jobs.assignableStaff(),
 		created: event.url.searchParams.has('created'),
 		runs: await jobRunsSection(job), // the Runs section (src/lib/components/run/JobRuns.svelte)
-		photos: await photos.listForJob(job.id) // the Photos section
+		photos: await photos.listForJob(job.id), // the Photos section
+		customerSide: await customerSection(job.id) // the Quote and Customer sections (src/lib/components/quote/)
 	};
 };
 
@@ -59,6 +62,22 @@ export const actions: Actions = {
 				return refused('assign', e.code === 'not-found' ? 404 : 400, e.message);
 			throw e;
 		}
+	},
+
+	// ── Customer side (src/lib/server/reports/job-actions.ts) ──
+	quote: async (event) => {
+		const user = requireRole(event, 'technician');
+		return quoteActions.saveQuote(event, user);
+	},
+
+	sendReport: async (event) => {
+		const user = requireRole(event, 'technician');
+		return quoteActions.sendReport(event, user);
+	},
+
+	revokeLink: async (event) => {
+		const user = requireRole(event, 'technician');
+		return quoteActions.revokeLink(event, user);
 	},
 
 	consent: async (event) => {

@@ -12,9 +12,6 @@ const schema = () => zod4(makeJobIntake(symptomVocabulary()));
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'technician');
 	const form = await superValidate(schema(), { id: 'intake' });
-	// Superforms would preselect each enum's first value; the technician must ask, not accept a default.
-	form.data.liquid = '' as never;
-	form.data.passcodeStatus = '' as never;
 	return { form, symptoms: symptomVocabulary() };
 };
 
