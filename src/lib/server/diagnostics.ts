@@ -3,7 +3,9 @@
  * thread, so the longest stall under load is the number that tells whether one slow request holds
  * up every other. Off unless TIDEMARK_DIAGNOSTICS=1; the histogram then costs one timer.
  */
-import { monitorEventLoopDelay, type IntervalHistogram } from 'node:perf_hooks';
+import { monitorEventLoopDelay } from 'node:perf_hooks';
+
+type IntervalHistogram = ReturnType<typeof monitorEventLoopDelay>;
 
 const g = globalThis as unknown as { __tidemarkLoop?: IntervalHistogram };
 

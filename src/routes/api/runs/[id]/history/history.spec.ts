@@ -9,7 +9,7 @@ const tech = {
 	email: 't@shop.test',
 	role: 'technician' as const
 };
-const call = (id: string, query: string, user: typeof tech | null) =>
+const call = async (id: string, query: string, user: typeof tech | null): Promise<Response> =>
 	GET({
 		locals: { user },
 		url: new URL(`http://shop.test/api/runs/${id}/history?${query}`),
