@@ -14,7 +14,9 @@ const publicAllowList = new Set([
 	'(auth)/signout/+page.server.ts', // clears whatever session the cookie holds
 	'theme/+server.ts', // a display preference cookie, used on the sign-in page too
 	'api/health/+server.ts', // liveness for monitors and the start-up benchmark; no data
-	'api/payments/webhook/+server.ts' // authenticated by the payment service's signature
+	'api/payments/webhook/+server.ts', // authenticated by the payment service's signature
+	'r/[token]/+page.server.ts', // the customer's report: authenticated by the link's token
+	'r/[token]/photos/[id]/[size]/+server.ts' // its photos: authenticated by the link's token
 ]);
 
 function serverEntryPoints(dir: string): string[] {
