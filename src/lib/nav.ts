@@ -38,6 +38,12 @@ export const navItems: NavItem[] = [
 		label: 'Insights',
 		role: 'lead',
 		description: 'Which verdicts come up, when, how long diagnosis takes and whether verdicts held.'
+	},
+	{
+		href: '/settings',
+		label: 'Settings',
+		role: 'lead',
+		description: 'Shop name, currency and tax, report link lifetime, cautions and terms.'
 	}
 ];
 
