@@ -44,6 +44,7 @@ export default defineConfig({
 			TIDEMARK_DEMO: '1',
 			TIDEMARK_FAKES: '1', // local mail and payment services (src/lib/server/fakes)
 			DEMO_PASSWORD: 'e2e-demo-password',
+			BODY_SIZE_LIMIT: '20M', // as under `npm start`: room for a 15 MB photo upload (src/lib/photos/limits.ts)
 			// A small invented run history for tests/e2e/insights.spec.ts (src/lib/server/startup-tasks.ts).
 			TIDEMARK_DEMO_HISTORY: '300'
 		}
