@@ -1,10 +1,12 @@
-import { error } from '@sveltejs/kit';
+import { error, fail } from '@sveltejs/kit';
+import { z } from 'zod';
 import { kebabId } from '$lib/flows/schema';
 import { hasRole } from '$lib/roles';
-import { requireUser } from '$lib/server/guards';
+import { requireRole, requireUser } from '$lib/server/guards';
+import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as staff from '$lib/server/staff/queries';
-import type { PageServerLoad } from './$types';
+import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
@@ -30,4 +32,26 @@ export const load: PageServerLoad = async (event) => {
 		current: current?.version ?? null,
 		seesDrafts: senior
 	};
+};
+
+const retireForm = z.object({ version: z.coerce.number().int().min(1) });
+
+export const actions: Actions = {
+	retire: async (event) => {
+		const user = requireRole(event, 'senior');
+		const parsed = retireForm.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { message: 'Choose a version to retire.' });
+		try {
+			const retired = await authoring.retire(user, event.params.id, parsed.data.version);
+			return {
+				message: `Version ${retired.version} is retired: no new runs start on it; runs under way finish on it.`
+			};
+		} catch (e) {
+			if (e instanceof authoring.FlowAuthoringError)
+				return fail(e.code === 'not-found' ? 404 : e.code === 'forbidden' ? 403 : 409, {
+					message: e.message
+				});
+			throw e;
+		}
+	}
 };
