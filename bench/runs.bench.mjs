@@ -205,7 +205,8 @@ async function bareInsert() {
 async function pageJavaScript(url, cookie) {
 	const html = await (await fetch(base + url, { headers: { cookie } })).text();
 	const srcs = new Set();
-	for (const m of html.matchAll(/<link[^>]+rel="modulepreload"[^>]+href="([^"]+)"/g)) srcs.add(m[1]);
+	for (const [tag] of html.matchAll(/<link\b[^>]*>/g))
+		if (/rel="modulepreload"/.test(tag)) srcs.add(/href="([^"]+)"/.exec(tag)[1]);
 	for (const m of html.matchAll(/import\("([^"]+\.js)"\)/g)) srcs.add(m[1]);
 	let raw = 0;
 	let gzip = 0;
