@@ -9,3 +9,4 @@ export * from "./runs";
 export * from "./attachments";
 export * from "./insights";
 export * from "./quotes";
+export * from "./checklists";
