@@ -38,7 +38,7 @@ export type Fact = {
 };
 
 /** Rows fetched per query while catching up; each batch is a short statement (see the bench). */
-const BATCH = 2000;
+const BATCH = 250;
 
 // Step ids and models repeat across thousands of rows: keep one copy of each string.
 const interned = new Map<string, string>();
@@ -151,7 +151,10 @@ async function loadLabels(db: DB): Promise<Labels> {
 		}
 	}
 	const names = new Map(people.map((p) => [p.id, p.name]));
-	return {
+	// Same content, same object: the answers cached in queries.ts stay valid across reloads.
+	const signature = JSON.stringify([flowRows, versions.length, people]);
+	if (g.__tidemarkLabelsLast?.signature === signature) return g.__tidemarkLabelsLast.labels;
+	const fresh: Labels = {
 		flowTitle: (id) => flowTitles.get(id) ?? id,
 		stepTitle: (flowId, stepId) => stepTitles.get(`${flowId}\u0000${stepId}`) ?? stepId,
 		verdictTitle: (flowId, code) => verdictTitles.get(`${flowId}\u0000${code}`) ?? code,
@@ -159,12 +162,15 @@ async function loadLabels(db: DB): Promise<Labels> {
 		definition: (flowId) => newest.get(flowId),
 		technicians: people.sort((a, b) => a.name.localeCompare(b.name))
 	};
+	g.__tidemarkLabelsLast = { signature, labels: fresh };
+	return fresh;
 }
 
 // One store per process, on globalThis so that Vite's HMR does not load it twice.
 const g = globalThis as unknown as {
 	__tidemarkFacts?: FactStore;
 	__tidemarkLabels?: { at: number; labels: Promise<Labels> };
+	__tidemarkLabelsLast?: { signature: string; labels: Labels };
 };
 
 export function factStore(): FactStore {
@@ -186,4 +192,5 @@ export function labels(db: DB): Promise<Labels> {
 export function resetStore() {
 	g.__tidemarkFacts = undefined;
 	g.__tidemarkLabels = undefined;
+	g.__tidemarkLabelsLast = undefined;
 }
