@@ -58,10 +58,7 @@ export const quotes = pgTable(
 	},
 	(t) => [
 		uniqueIndex('quotes_job_version_idx').on(t.jobId, t.version),
-		check(
-			'quotes_status_check',
-			sql`${t.status} in ('draft', 'sent', 'approved', 'declined', 'superseded')`
-		),
+		check('quotes_status_check', sql`${t.status} in ('draft', 'sent', 'approved', 'declined', 'superseded')`),
 		check(
 			'quotes_amounts_check',
 			sql`${t.netMinor} >= 0 and ${t.taxMinor} >= 0 and ${t.grossMinor} >= 0 and ${t.paidMinor} >= 0`
