@@ -1,0 +1,100 @@
+import { expect, test } from '@playwright/test';
+import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
+import { signIn } from './helpers';
+
+// The test server starts with 300 invented runs (TIDEMARK_DEMO_HISTORY in playwright.config.ts,
+// written by src/lib/server/insights/demo-history.ts over the shipped flows).
+const FLOW = 'no-power-after-liquid';
+const FLOW_TITLE = 'No power or no boot after liquid';
+
+test('the lead reads verdict frequencies, filters by flow and date, reads an interval and exports CSV', async ({
+	page
+}) => {
+	await signIn(page, 'lead', '/insights');
+	await expect(page.getByRole('heading', { name: 'Insights', exact: true })).toBeVisible();
+	await expect(
+		page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Insights' })
+	).toBeVisible();
+	const table = page.getByTestId('verdict-table');
+	await expect(table.locator('tbody tr').first()).toBeVisible();
+
+	await page.getByLabel('Flow').selectOption(FLOW);
+	await expect(page).toHaveURL(new RegExp(`flow=${FLOW}`));
+	await expect(table.locator('tbody tr').first()).toContainText(FLOW_TITLE);
+	for (const cell of await table.locator('tbody tr td:first-child').allTextContents())
+		expect(cell).toContain(FLOW_TITLE);
+
+	// Dates from the filter, kept in the URL; the page still has rows for the last year.
+	const from = new Date(Date.now() - 200 * 86_400_000).toISOString().slice(0, 10);
+	await page.getByLabel('From').fill(from);
+	await page.getByLabel('From').dispatchEvent('change');
+	await expect(page).toHaveURL(new RegExp(`from=${from}`));
+	await expect(table.locator('tbody tr').first()).toBeVisible();
+
+	// An interval reads as "lower–upper %" and holds the share.
+	const row = table.locator('tbody tr').first();
+	const share = Number((await row.locator('td').nth(3).textContent())!.replace(/[^\d.]/g, ''));
+	const interval = (await row.getByTestId('interval').textContent())!;
+	const m = interval.match(/^([\d.]+)–([\d.]+) %$/);
+	expect(m, interval).not.toBeNull();
+	expect(Number(m![1])).toBeLessThanOrEqual(share + 0.5);
+	expect(Number(m![2])).toBeGreaterThanOrEqual(share - 0.5);
+
+	// Reload keeps the filters (they live in the URL).
+	await page.reload();
+	await expect(page.getByLabel('Flow')).toHaveValue(FLOW);
+	await expect(page.getByLabel('From')).toHaveValue(from);
+
+	const [download] = await Promise.all([
+		page.waitForEvent('download'),
+		page.getByTestId('csv-verdicts').click()
+	]);
+	expect(download.suggestedFilename()).toBe('tidemark-verdicts.csv');
+	const csv = await (await download.createReadStream()).toArray();
+	const lines = Buffer.concat(csv).toString('utf8').trim().split('\n');
+	expect(lines[0]).toBe(
+		'flow,version,verdict,verdict_title,count,completed_runs,share,wilson95_lower,wilson95_upper'
+	);
+	expect(lines.length).toBeGreaterThan(1);
+	for (const line of lines.slice(1)) expect(line.startsWith(`${FLOW},`)).toBe(true);
+});
+
+test('insights are for the lead only', async ({ page }) => {
+	await signIn(page, 'tech');
+	await expect(
+		page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Insights' })
+	).toHaveCount(0);
+	expect((await page.goto('/insights'))?.status()).toBe(403);
+	expect((await page.request.get('/api/insights/verdicts')).status()).toBe(403);
+});
+
+test('a technician gets the past runs from the step a new run stands on', async ({ page }) => {
+	await signIn(page, 'tech');
+	const body = `0044${String(Date.now() % 1e10).padStart(10, '0')}`;
+	const job = await page.request.post('/api/jobs', {
+		data: {
+			customerName: 'Ines Larkspur',
+			customerEmail: 'ines@example.test',
+			maker: 'Corvana',
+			model: 'Tern 5',
+			imei: `${body}${imeiCheckDigit(body)}`,
+			symptoms: ['no-power'],
+			liquid: 'fresh',
+			submerged: false,
+			passcodeStatus: 'given',
+			consentToOpen: true,
+			dataFirst: false
+		}
+	});
+	expect(job.status(), await job.text()).toBe(201);
+	const run = await page.request.post('/api/runs', { data: { jobId: (await job.json()).id, flowId: FLOW } });
+	expect(run.status(), await run.text()).toBe(201);
+	const runId = (await run.json()).id as string;
+	const res = await page.request.get(`/api/runs/${runId}/history`);
+	expect(res.status()).toBe(200);
+	const history = await res.json();
+	expect(history.stepId).toBe('power-on-as-received');
+	expect(history.runs).toBeGreaterThanOrEqual(5);
+	expect(history.verdicts.length).toBeGreaterThan(0);
+	for (const v of history.verdicts) expect(v.lower).toBeLessThanOrEqual(v.share);
+});
