@@ -125,7 +125,7 @@ try {
 
 	const js = await pageJavaScript(`/runs/${runIds[0]}`, tech);
 	console.log(
-		`run page JavaScript: ${js.files} files, ${(js.raw / 1024).toFixed(1)} KB raw, ${(js.gzip / 1024).toFixed(1)} KB gzipped ` +
+		`run page JavaScript (nodes ${js.nodes.join(', ')}): ${js.files} files, ${(js.raw / 1024).toFixed(1)} KB raw, ${(js.gzip / 1024).toFixed(1)} KB gzipped ` +
 			`(goal <= 100 KB) ${js.gzip <= 100 * 1024 ? 'OK' : 'OVER GOAL'}`
 	);
 
@@ -199,22 +199,42 @@ async function bareInsert() {
 }
 
 /**
- * The JavaScript a browser loads for the page: every module the server-rendered HTML preloads or
- * imports (SvelteKit lists the page's whole static import graph as modulepreload links).
+ * The JavaScript a browser loads for the page: SvelteKit's HTML imports start.js and app.js and
+ * names the route's nodes (`node_ids`); app.js maps each node to its file. Every module reachable
+ * from those by static imports is counted once (lazy `import()` chunks are not loaded up front).
  */
 async function pageJavaScript(url, cookie) {
-	const html = await (await fetch(base + url, { headers: { cookie } })).text();
-	const srcs = new Set();
-	for (const [tag] of html.matchAll(/<link\b[^>]*>/g))
-		if (/rel="modulepreload"/.test(tag)) srcs.add(/href="([^"]+)"/.exec(tag)[1]);
-	for (const m of html.matchAll(/import\("([^"]+\.js)"\)/g)) srcs.add(m[1]);
+	const pageUrl = base + url;
+	const html = await (await fetch(pageUrl, { headers: { cookie } })).text();
+	const entries = [...html.matchAll(/import\("([^"]+\.js)"\)/g)].map((m) => new URL(m[1], pageUrl).href);
+	const nodeIds = JSON.parse(/node_ids:\s*(\[[^\]]*\])/.exec(html)?.[1] ?? '[]');
+	const text = new Map();
+	const get = async (href) => {
+		if (!text.has(href)) text.set(href, Buffer.from(await (await fetch(href)).arrayBuffer()));
+		return text.get(href);
+	};
+	const app = entries.find((e) => /\/entry\/app\./.test(e));
+	const appText = app ? (await get(app)).toString() : '';
+	const nodeFiles = [...appText.matchAll(/import\("(\.\.\/nodes\/(\d+)\.[^"]+\.js)"\)/g)]
+		.filter((m) => nodeIds.includes(Number(m[2])))
+		.map((m) => new URL(m[1], app).href);
+	const queue = [...entries, ...nodeFiles];
+	const seen = new Set();
+	while (queue.length) {
+		const href = queue.pop();
+		if (seen.has(href)) continue;
+		seen.add(href);
+		const src = (await get(href)).toString();
+		// Static imports only: `import{a}from"./x.js"`, `import"./x.js"`, `export*from"./x.js"`.
+		for (const m of src.matchAll(/(?:\bfrom|\bimport)\s*"(\.{1,2}\/[^"]+\.js)"/g))
+			queue.push(new URL(m[1], href).href);
+	}
 	let raw = 0;
 	let gzip = 0;
-	for (const src of srcs) {
-		const abs = new URL(src, base + url).href;
-		const bytes = Buffer.from(await (await fetch(abs)).arrayBuffer());
+	for (const href of seen) {
+		const bytes = await get(href);
 		raw += bytes.length;
 		gzip += zlib.gzipSync(bytes, { level: 9 }).length;
 	}
-	return { files: srcs.size, raw, gzip };
+	return { files: seen.size, raw, gzip, nodes: nodeIds };
 }
