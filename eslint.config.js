@@ -6,7 +6,16 @@ import svelteConfig from './svelte.config.js';
 
 export default ts.config(
 	{
-		ignores: ['build/', '.*/', '.svelte-kit/', 'drizzle/', 'data/', '.e2e-data/', 'test-results/', 'node_modules/']
+		ignores: [
+			'build/',
+			'.*/',
+			'.svelte-kit/',
+			'drizzle/',
+			'data/',
+			'.e2e-data/',
+			'test-results/',
+			'node_modules/'
+		]
 	},
 	js.configs.recommended,
 	...ts.configs.recommended,

@@ -70,7 +70,9 @@ test('the job list filters by status and sorts, keeping both in the URL', async 
 	await signIn(page, 'tech', '/jobs');
 	await page.getByLabel('Status').selectOption('diagnosing');
 	await expect(page).toHaveURL(/status=diagnosing/);
-	for (const row of await page.getByTestId('job-row').all()) await expect(row).toContainText('Diagnosing');
+	// Wait for the filtered list itself: the URL changes before the new page of rows arrives.
+	await expect(page.getByTestId('job-row').first()).toContainText('Diagnosing');
+	await expect(page.getByTestId('job-row').filter({ hasNotText: 'Diagnosing' })).toHaveCount(0);
 	await page.goto('/jobs?sort=customer&dir=asc');
 	await expect(page.getByRole('columnheader', { name: /Customer/ })).toHaveAttribute(
 		'aria-sort',
