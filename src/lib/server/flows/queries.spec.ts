@@ -7,6 +7,10 @@ import { getDb } from '$lib/server/db';
 import { auditLog, flows, flowVersions } from '$lib/server/db/schema';
 import * as staff from '$lib/server/staff/queries';
 import { toFlowYaml } from '$lib/flows/to-yaml';
+import { imeiCheckDigit } from '$lib/domain/identifiers';
+import { makeJobIntake } from '$lib/schemas/job';
+import * as jobs from '$lib/server/jobs/queries';
+import * as runs from '$lib/server/runs/queries';
 import * as library from './queries';
 import { definitionColumns } from './queries';
 
@@ -217,5 +221,51 @@ describe('the library', () => {
 		expect(found.map((f) => f.id)).not.toContain('only-a-draft');
 		expect(await library.suggestBySymptoms(['no-such-symptom'])).toEqual([]);
 		expect(await library.suggestBySymptoms([])).toEqual([]);
+	});
+});
+
+describe('run counts in the library', () => {
+	it('counts every run of every version of a flow, and 0 for a flow never run', async () => {
+		const tech = await staff.create(null, {
+			name: 'Ossian Brake',
+			email: 'ossian@shop.test',
+			role: 'technician',
+			password: 'tech-password-1'
+		});
+		// Invented IMEI body ("00" test reporting body), check digit computed.
+		const body = '00220000000002';
+		const intake = makeJobIntake().parse({
+			customerName: 'Ebba Quillfeather',
+			customerPhone: '+00 555 0100',
+			maker: 'Corvana',
+			model: 'Tern 5',
+			imei: `${body}${imeiCheckDigit(body)}`,
+			symptoms: ['restart-loop'],
+			liquid: 'salt',
+			submerged: false,
+			passcodeStatus: 'given',
+			consentToOpen: true
+		});
+		for (let i = 0; i < 3; i++) {
+			const job = await jobs.create(tech.id, intake);
+			await runs.start(job.id, 'restart-loop-after-liquid', tech);
+		}
+		const job = await jobs.create(tech.id, intake);
+		await runs.start(job.id, 'face-unlock-after-liquid', tech);
+
+		const counts = await library.runsByFlow([
+			'restart-loop-after-liquid',
+			'face-unlock-after-liquid',
+			'only-a-draft'
+		]);
+		expect([...counts]).toEqual([
+			['restart-loop-after-liquid', 3],
+			['face-unlock-after-liquid', 1],
+			['only-a-draft', 0]
+		]);
+		expect(await library.runsByFlow([])).toEqual(new Map());
+		const forTech = await library.listLibrary('technician');
+		expect(forTech.find((f) => f.id === 'restart-loop-after-liquid')?.runs).toBe(3);
+		expect(forTech.find((f) => f.id === 'face-unlock-after-liquid')?.runs).toBe(1);
 	});
 });

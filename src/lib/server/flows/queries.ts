@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { and, asc, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
 import { getDb, type DB, type Tx } from '$lib/server/db';
-import { flows, flowVersions, users, type FlowStatus, type FlowVersion } from '$lib/server/db/schema';
+import { flows, flowVersions, runs, users, type FlowStatus, type FlowVersion } from '$lib/server/db/schema';
 import { record } from '$lib/server/audit';
 import { checkFlowText } from '$lib/flows/parse';
 import { formatPath, type FlowProblem } from '$lib/flows/check';
@@ -168,12 +168,19 @@ export type LibraryEntry = {
 	runs: number;
 };
 
-/**
- * How many runs used each flow. There are no runs yet: when the runs table exists, count its rows
- * joined to flow_versions by flow id here, and the library shows the numbers.
- */
+/** How many runs (of any status, on any version) each flow has had; 0 for a flow never run. */
 export async function runsByFlow(flowIds: string[]): Promise<Map<string, number>> {
-	return new Map(flowIds.map((id) => [id, 0]));
+	const counts = new Map(flowIds.map((id) => [id, 0]));
+	if (flowIds.length === 0) return counts;
+	const db = await getDb();
+	const rows = await db
+		.select({ flowId: flowVersions.flowId, n: sql<number>`count(*)::int` })
+		.from(runs)
+		.innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId))
+		.where(inArray(flowVersions.flowId, flowIds))
+		.groupBy(flowVersions.flowId);
+	for (const r of rows) counts.set(r.flowId, Number(r.n));
+	return counts;
 }
 
 export async function listLibrary(role: Role): Promise<LibraryEntry[]> {
