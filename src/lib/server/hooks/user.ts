@@ -1,17 +1,48 @@
-import type { Handle } from '@sveltejs/kit';
+import type { Cookies, Handle } from '@sveltejs/kit';
 import * as staff from '$lib/server/staff/queries';
 
+// Auth.js answers `locals.auth()` by decrypting the session token and encrypting a fresh one, which
+// costs more than the rest of a step event together. The user id a token carries never changes, so
+// it is remembered per token for a minute; the token's own expiry still counts (see `until`), and
+// the cookie is refreshed by Auth.js whenever the cache misses.
+const SESSION_CACHE_MS = 60_000;
+const SESSION_CACHE_SIZE = 5000;
+const sessions = new Map<string, { userId: string | null; until: number }>();
+
+/** The session cookie(s) Auth.js wrote (chunked tokens come as `.0`, `.1`, …), or '' when none. */
+function sessionToken(cookies: Cookies) {
+	return cookies
+		.getAll()
+		.filter((c) => c.name.includes('authjs.session-token'))
+		.map((c) => `${c.name}=${c.value}`)
+		.sort()
+		.join(';');
+}
+
+async function sessionUserId(event: Parameters<Handle>[0]['event']): Promise<string | null> {
+	const token = sessionToken(event.cookies);
+	if (!token) return null;
+	const now = Date.now();
+	const hit = sessions.get(token);
+	if (hit && hit.until > now) return hit.userId;
+	const session = await event.locals.auth();
+	const userId = session?.user?.id ?? null;
+	const expires = session?.expires ? Date.parse(session.expires) : now;
+	if (sessions.size >= SESSION_CACHE_SIZE) sessions.delete(sessions.keys().next().value!);
+	sessions.set(token, { userId, until: Math.min(now + SESSION_CACHE_MS, expires) });
+	return userId;
+}
+
 /**
- * Fills locals.user from the session. The user row is re-read on every request, so a disabled
- * account or a changed role counts at once. This hook only fills locals; every server entry point
- * still calls requireUser / requireRole itself.
+ * Fills locals.user from the session. The user row is looked up on every request (cached for two
+ * seconds and cleared by every staff change), so a disabled account or a changed role counts at
+ * once. This hook only fills locals; every server entry point still calls requireUser / requireRole.
  */
 export const userHandle: Handle = async ({ event, resolve }) => {
 	event.locals.user = null;
-	const session = await event.locals.auth();
-	const id = session?.user?.id;
+	const id = await sessionUserId(event);
 	if (id) {
-		const user = await staff.findById(id);
+		const user = await staff.findSignedIn(id);
 		if (user && !user.disabled) {
 			event.locals.user = { id: user.id, name: user.name, email: user.email, role: user.role };
 		}

@@ -88,6 +88,26 @@ describe('staff queries', () => {
 		);
 	});
 
+	it('the per-request lookup sees a disabled account or a changed role at once, despite its cache', async () => {
+		const tech = await staff.create(leadId, {
+			name: 'Vell Orrin',
+			email: 'vell@shop.test',
+			role: 'technician',
+			password: 'vell-password-1'
+		});
+		expect((await staff.findSignedIn(tech.id))!.disabled).toBe(false);
+		await staff.setDisabled(leadId, tech.id, true);
+		expect((await staff.findSignedIn(tech.id))!.disabled).toBe(true);
+		await staff.setDisabled(leadId, tech.id, false);
+		await staff.changeRole(leadId, tech.id, 'senior');
+		expect((await staff.findSignedIn(tech.id))!.role).toBe('senior');
+		// A write outside staff/queries.ts is not seen until the two-second cache runs out.
+		const db = await getDb();
+		await db.update(users).set({ name: 'Vell Orrin-Sade' }).where(eq(users.id, tech.id));
+		expect((await staff.findSignedIn(tech.id))!.name).toBe('Vell Orrin');
+		expect((await staff.findById(tech.id))!.name).toBe('Vell Orrin-Sade');
+	});
+
 	it('rolls back the change when its audit entry cannot be written', async () => {
 		const db = await getDb();
 		const tech = await staff.create(leadId, {

@@ -43,6 +43,34 @@ export async function findById(id: string): Promise<StaffMember | undefined> {
 	return user;
 }
 
+// The signed-in user is looked up on every request (hooks/user.ts). This short-lived cache keeps that
+// lookup off the database; every staff write below clears it, so in this process a disabled account
+// or a changed role counts at once. Other processes sharing a PostgreSQL server see a change within
+// SIGNED_IN_CACHE_MS.
+const SIGNED_IN_CACHE_MS = 2000;
+const signedIn = new Map<string, { member: StaffMember | undefined; until: number }>();
+
+/** findById for the per-request user lookup, cached briefly and cleared by every staff write. */
+export async function findSignedIn(id: string): Promise<StaffMember | undefined> {
+	const now = Date.now();
+	const hit = signedIn.get(id);
+	if (hit && hit.until > now) return hit.member;
+	const member = await findById(id);
+	if (signedIn.size >= 1000) signedIn.clear();
+	signedIn.set(id, { member, until: now + SIGNED_IN_CACHE_MS });
+	return member;
+}
+
+/** Runs a staff write and forgets every cached signed-in user, before and after it commits. */
+async function staffWrite<T>(write: () => Promise<T>): Promise<T> {
+	signedIn.clear();
+	try {
+		return await write();
+	} finally {
+		signedIn.clear();
+	}
+}
+
 export async function list(): Promise<StaffMember[]> {
 	const db = await getDb();
 	return db.select(publicColumns).from(users).orderBy(asc(users.disabled), asc(users.name));
@@ -60,98 +88,108 @@ export async function create(
 ) {
 	const db = await getDb();
 	const passwordHash = await hashPassword(input.password);
-	return db.transaction(async (tx) => {
-		if (await emailTaken(tx, input.email)) {
-			throw new StaffRuleError('email', 'Someone on the staff already uses this e-mail address.');
-		}
-		const [created] = await tx
-			.insert(users)
-			.values({
-				name: input.name.trim(),
-				email: input.email.trim().toLowerCase(),
-				role: input.role,
-				passwordHash,
-				mustChangePassword: input.mustChangePassword ?? true
-			})
-			.returning(publicColumns);
-		await record(tx, {
-			actorId,
-			action: 'staff.create',
-			targetType: 'user',
-			targetId: created.id,
-			details: { email: created.email, role: created.role }
-		});
-		return created;
-	});
+	return staffWrite(() =>
+		db.transaction(async (tx) => {
+			if (await emailTaken(tx, input.email)) {
+				throw new StaffRuleError('email', 'Someone on the staff already uses this e-mail address.');
+			}
+			const [created] = await tx
+				.insert(users)
+				.values({
+					name: input.name.trim(),
+					email: input.email.trim().toLowerCase(),
+					role: input.role,
+					passwordHash,
+					mustChangePassword: input.mustChangePassword ?? true
+				})
+				.returning(publicColumns);
+			await record(tx, {
+				actorId,
+				action: 'staff.create',
+				targetType: 'user',
+				targetId: created.id,
+				details: { email: created.email, role: created.role }
+			});
+			return created;
+		})
+	);
 }
 
 export async function changeRole(actorId: string, id: string, role: Role) {
 	const db = await getDb();
-	return db.transaction(async (tx) => {
-		const target = await lockUser(tx, id);
-		if (target.role === role) return target;
-		if (target.role === 'lead' && !target.disabled) await assertAnotherActiveLead(tx, id, 'role');
-		const [updated] = await tx
-			.update(users)
-			.set({ role, updatedAt: new Date() })
-			.where(eq(users.id, id))
-			.returning(publicColumns);
-		await record(tx, {
-			actorId,
-			action: 'staff.role',
-			targetType: 'user',
-			targetId: id,
-			details: { from: target.role, to: role }
-		});
-		return updated;
-	});
+	return staffWrite(() =>
+		db.transaction(async (tx) => {
+			const target = await lockUser(tx, id);
+			if (target.role === role) return target;
+			if (target.role === 'lead' && !target.disabled) await assertAnotherActiveLead(tx, id, 'role');
+			const [updated] = await tx
+				.update(users)
+				.set({ role, updatedAt: new Date() })
+				.where(eq(users.id, id))
+				.returning(publicColumns);
+			await record(tx, {
+				actorId,
+				action: 'staff.role',
+				targetType: 'user',
+				targetId: id,
+				details: { from: target.role, to: role }
+			});
+			return updated;
+		})
+	);
 }
 
 export async function setDisabled(actorId: string, id: string, disabled: boolean) {
 	const db = await getDb();
-	return db.transaction(async (tx) => {
-		const target = await lockUser(tx, id);
-		if (target.disabled === disabled) return target;
-		if (disabled && target.role === 'lead') await assertAnotherActiveLead(tx, id, 'disabled');
-		const [updated] = await tx
-			.update(users)
-			.set({ disabled, updatedAt: new Date() })
-			.where(eq(users.id, id))
-			.returning(publicColumns);
-		await record(tx, {
-			actorId,
-			action: disabled ? 'staff.disable' : 'staff.enable',
-			targetType: 'user',
-			targetId: id
-		});
-		return updated;
-	});
+	return staffWrite(() =>
+		db.transaction(async (tx) => {
+			const target = await lockUser(tx, id);
+			if (target.disabled === disabled) return target;
+			if (disabled && target.role === 'lead') await assertAnotherActiveLead(tx, id, 'disabled');
+			const [updated] = await tx
+				.update(users)
+				.set({ disabled, updatedAt: new Date() })
+				.where(eq(users.id, id))
+				.returning(publicColumns);
+			await record(tx, {
+				actorId,
+				action: disabled ? 'staff.disable' : 'staff.enable',
+				targetType: 'user',
+				targetId: id
+			});
+			return updated;
+		})
+	);
 }
 
 export async function resetPassword(actorId: string, id: string, temporaryPassword: string) {
 	const db = await getDb();
 	const passwordHash = await hashPassword(temporaryPassword);
-	return db.transaction(async (tx) => {
-		await lockUser(tx, id);
-		await tx
-			.update(users)
-			.set({ passwordHash, mustChangePassword: true, updatedAt: new Date() })
-			.where(eq(users.id, id));
-		await record(tx, { actorId, action: 'staff.reset-password', targetType: 'user', targetId: id });
-	});
+	return staffWrite(() =>
+		db.transaction(async (tx) => {
+			await lockUser(tx, id);
+			await tx
+				.update(users)
+				.set({ passwordHash, mustChangePassword: true, updatedAt: new Date() })
+				.where(eq(users.id, id));
+			await record(tx, { actorId, action: 'staff.reset-password', targetType: 'user', targetId: id });
+		})
+	);
 }
 
 export async function changeOwnPassword(id: string, newPassword: string) {
 	const db = await getDb();
 	const passwordHash = await hashPassword(newPassword);
-	await db.transaction(async (tx) => {
-		await lockUser(tx, id);
-		await tx
-			.update(users)
-			.set({ passwordHash, mustChangePassword: false, updatedAt: new Date() })
-			.where(eq(users.id, id));
-		await record(tx, { actorId: id, action: 'staff.change-password', targetType: 'user', targetId: id });
-	});
+	await staffWrite(() =>
+		db.transaction(async (tx) => {
+			await lockUser(tx, id);
+			await tx
+				.update(users)
+				.set({ passwordHash, mustChangePassword: false, updatedAt: new Date() })
+				.where(eq(users.id, id));
+			await record(tx, { actorId: id, action: 'staff.change-password', targetType: 'user', targetId: id });
+		})
+	);
 }
 
 export async function auditFor(targetType: string, targetId?: string, limit = 50) {
