@@ -22,6 +22,11 @@ export const runPhotoUploadFields = photoUploadFields.extend({
 		.max(200)
 });
 
+/** GET /api/runs/:id/photos?stepId= — one step's photos, or all of the run's without it. */
+export const runPhotoListQuery = z.object({
+	stepId: z.string().min(1, { message: 'Name the step (stepId).' }).max(200).optional()
+});
+
 export const photoPatch = z
 	.object({
 		caption: z.string().max(MAX_CAPTION_LENGTH).optional(),

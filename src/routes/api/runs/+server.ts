@@ -1,20 +1,16 @@
 import { json } from '@sveltejs/kit';
-import { z } from 'zod';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
 import { answer, badRequest, readJson } from '$lib/server/runs/http';
-import { runStartInput, type RunSummary } from '$lib/runs/types';
+import { runListQuery, runStartInput, type RunListResponse, type RunStartedResponse } from '$lib/schemas/run';
 import type { RequestHandler } from './$types';
 
-export type RunStartedResponse = { id: string; currentStep: string; flowVersionId: string };
-export type RunListResponse = { runs: RunSummary[] };
-
-const listQuery = z.object({ jobId: z.uuid('Give the job as ?jobId=<uuid>.') });
+export type { RunListResponse, RunStartedResponse };
 
 /** GET /api/runs?jobId= — the runs of one job, newest first. */
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
-	const parsed = listQuery.safeParse({ jobId: event.url.searchParams.get('jobId') ?? '' });
+	const parsed = runListQuery.safeParse({ jobId: event.url.searchParams.get('jobId') ?? '' });
 	if (!parsed.success) return badRequest(parsed.error);
 	return json({ runs: await runs.listForJob(parsed.data.jobId) } satisfies RunListResponse);
 };

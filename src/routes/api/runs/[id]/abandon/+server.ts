@@ -2,10 +2,10 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
 import { answer, badRequest, readJson } from '$lib/server/runs/http';
-import { runAbandonInput } from '$lib/runs/types';
+import { runAbandonInput, type RunAbandonedResponse } from '$lib/schemas/run';
 import type { RequestHandler } from './$types';
 
-export type RunAbandonedResponse = { id: string; status: 'abandoned'; abandonReason: string };
+export type { RunAbandonedResponse };
 
 /** POST /api/runs/:id/abandon { reason } — stops a run under way; 409 once it has finished. */
 export const POST: RequestHandler = async (event) => {

@@ -2,7 +2,8 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
 import { answer, badRequest, readJson } from '$lib/server/runs/http';
-import { runEventInput, type RunEventResult } from '$lib/runs/types';
+import { runEventInput } from '$lib/schemas/run';
+import type { RunEventResult } from '$lib/runs/types';
 import type { RequestHandler } from './$types';
 
 /** 200: the event was applied (or replayed: the same key again returns the same body). */

@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as photos from '$lib/server/photos/queries';
 import { answer, badRequest, fail, readUpload, store } from '$lib/server/photos/http';
-import { photoId, runPhotoUploadFields, type PhotoListResponse } from '$lib/photos/api';
+import { photoId, runPhotoListQuery, runPhotoUploadFields, type PhotoListResponse } from '$lib/photos/api';
 import type { RequestHandler } from './$types';
 
 export type { PhotoListResponse, PhotoUploadResponse, PhotoErrorResponse } from '$lib/photos/api';
@@ -12,8 +12,10 @@ export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
 	if (!photoId.safeParse(event.params.id).success)
 		return fail(404, { message: 'No such run.', code: 'not-found' });
-	const stepId = event.url.searchParams.get('stepId') ?? undefined;
-	return json({ photos: await photos.listForRun(event.params.id, stepId) } satisfies PhotoListResponse);
+	const query = runPhotoListQuery.safeParse({ stepId: event.url.searchParams.get('stepId') ?? undefined });
+	if (!query.success) return badRequest(query.error);
+	const list = await photos.listForRun(event.params.id, query.data.stepId);
+	return json({ photos: list } satisfies PhotoListResponse);
 };
 
 /**

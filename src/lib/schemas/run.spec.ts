@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runAbandonInput, runEventInput } from './types';
+import { runAbandonInput, runEventInput } from './run';
 
 describe('runEventInput', () => {
 	const key = '6f1c2b8e-3d4a-4f5b-9c6d-7e8f9a0b1c2d';
