@@ -4,11 +4,12 @@
  * in the same transaction. Routes map FlowAuthoringError codes to HTTP: not-found 404, forbidden 403,
  * conflict 409, state 409, invalid 400.
  */
-import { and, eq, sql } from 'drizzle-orm';
+import { and, desc, eq, isNotNull, sql } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
 import { auditLog, flows, flowVersions } from '$lib/server/db/schema';
 import { record } from '$lib/server/audit';
 import { checkFlow, type FlowProblem } from '$lib/flows/check';
+import { parseFlow, withLines } from '$lib/flows/parse';
 import { schemaProblems } from '$lib/flows/problems';
 import { flowSchema, type FlowDefinition } from '$lib/flows/schema';
 import { hasRole, type Role } from '$lib/roles';
@@ -114,6 +115,62 @@ export async function createDraft(
 			details: { draftId: row.id, basedOnId }
 		});
 		return withStepOrder(row);
+	});
+}
+
+export type ImportedDraft = { draft: StoredVersion; problems: FlowProblem[]; newFlow: boolean };
+
+/**
+ * A `.flow.yaml` text as a new draft: parsed safely (see parseFlow: core schema, no custom tags,
+ * size and alias caps). Text that is not a flow is refused with its problems and nothing is stored;
+ * a flow with graph problems becomes a draft anyway, and the problems come back to be shown. A file
+ * for a flow the library has becomes a draft of it (based on its newest published version).
+ */
+export async function importDraft(actor: Actor, text: string): Promise<ImportedDraft> {
+	assertSenior(actor);
+	const parsed = parseFlow(text);
+	if (!parsed.ok)
+		throw new FlowAuthoringError(
+			'invalid',
+			'The file is not a flow yet; nothing was imported. Fix the problems below and try again.',
+			parsed.problems
+		);
+	const definition = parsed.definition;
+	const problems = withLines(checkFlow(definition).problems, parsed.locate);
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const inserted = await tx
+			.insert(flows)
+			.values({ id: definition.id, title: definition.title, symptoms: definition.symptoms })
+			.onConflictDoNothing()
+			.returning({ id: flows.id });
+		const newFlow = inserted.length > 0;
+		const [base] = newFlow
+			? []
+			: await tx
+					.select({ id: flowVersions.id })
+					.from(flowVersions)
+					.where(and(eq(flowVersions.flowId, definition.id), isNotNull(flowVersions.version)))
+					.orderBy(desc(flowVersions.version))
+					.limit(1);
+		const [row] = await tx
+			.insert(flowVersions)
+			.values({
+				flowId: definition.id,
+				status: 'draft',
+				authorId: actor.id,
+				basedOnId: base?.id ?? null,
+				...definitionColumns(definition)
+			})
+			.returning();
+		await record(tx, {
+			actorId: actor.id,
+			action: 'flow.draft.create',
+			targetType: 'flow',
+			targetId: definition.id,
+			details: { draftId: row.id, basedOnId: base?.id ?? null, imported: true, problems: problems.length }
+		});
+		return { draft: withStepOrder(row), problems, newFlow };
 	});
 }
 
@@ -224,6 +281,27 @@ async function assertFourEyes(tx: Tx, actor: Actor, row: StoredVersion, doing: s
 			'forbidden',
 			`You edited this draft, so you cannot ${doing} it: another senior or a lead reviews it.`
 		);
+}
+
+/**
+ * Why `actor` may not approve or send back this draft, or null when they may: the page hides the
+ * review buttons from the author and every editor, and approve/sendBack refuse them anyway.
+ */
+export async function reviewRefusal(actor: Actor, draftId: string): Promise<string | null> {
+	if (!hasRole(actor.role, 'senior')) return 'Only senior technicians and leads review flows.';
+	const db = await getDb();
+	return db.transaction(async (tx) => {
+		const [row] = await tx.select().from(flowVersions).where(eq(flowVersions.id, draftId));
+		if (!row) return 'No such draft.';
+		if (row.status !== 'in-review') return 'Only a draft submitted for review can be approved or sent back.';
+		try {
+			await assertFourEyes(tx, actor, withStepOrder(row), 'review');
+			return null;
+		} catch (e) {
+			if (e instanceof FlowAuthoringError) return e.message;
+			throw e;
+		}
+	});
 }
 
 /** Approval publishes the draft as the flow's next version number. */

@@ -1,0 +1,21 @@
+import { z } from 'zod';
+import { kebabId } from '$lib/flows/schema';
+import { MAX_FLOW_CHARS } from '$lib/flows/parse';
+
+/** Largest upload: the largest flow text, in bytes (a character may take up to 4 bytes in UTF-8). */
+export const MAX_UPLOAD_BYTES = MAX_FLOW_CHARS * 4;
+
+/** Paths the library already uses: a flow with one of these ids could not be opened. */
+const RESERVED = ['new'];
+
+export const blankForm = z.object({
+	id: kebabId.refine(
+		(id) => !RESERVED.includes(id),
+		'That id is taken by the library itself; choose another.'
+	),
+	title: z
+		.string()
+		.trim()
+		.min(3, 'Give the flow a title of at least 3 characters.')
+		.max(200, 'Keep the title under 200 characters.')
+});
