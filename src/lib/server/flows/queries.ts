@@ -316,3 +316,28 @@ export async function suggestBySymptoms(tags: string[]): Promise<Suggestion[]> {
 		.map((r) => ({ ...r, matched: r.symptoms.filter((s) => wanted.includes(s)) }))
 		.sort((a, b) => b.matched.length - a.matched.length || a.title.localeCompare(b.title));
 }
+
+export type AwaitingReview = {
+	id: string;
+	flowId: string;
+	title: string;
+	authorName: string | null;
+	submittedAt: Date | null;
+};
+
+/** Every draft submitted for review, oldest first (the longest waiting at the top); for seniors. */
+export async function awaitingReview(): Promise<AwaitingReview[]> {
+	const db = await getDb();
+	return db
+		.select({
+			id: flowVersions.id,
+			flowId: flowVersions.flowId,
+			title: sql<string>`${flowVersions.definition}->>'title'`,
+			authorName: users.name,
+			submittedAt: flowVersions.submittedAt
+		})
+		.from(flowVersions)
+		.leftJoin(users, eq(users.id, flowVersions.authorId))
+		.where(eq(flowVersions.status, 'in-review'))
+		.orderBy(asc(flowVersions.submittedAt));
+}

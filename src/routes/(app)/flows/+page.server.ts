@@ -5,12 +5,22 @@ import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	const flows = await flowLibrary.listLibrary(user.role);
+	const senior = hasRole(user.role, 'senior');
+	const [flows, awaitingReview] = await Promise.all([
+		flowLibrary.listLibrary(user.role),
+		senior ? flowLibrary.awaitingReview() : []
+	]);
 	// Files refused at start-up are the authors' business; technicians only see what is published.
 	const report = hasRole(user.role, 'senior') ? flowLibrary.lastImport() : undefined;
 	const refused = (report?.refused ?? []).map((r) => ({
 		file: r.file,
 		problems: r.problems.map((p) => flowLibrary.formatProblem(r.file, p))
 	}));
-	return { flows, refused, importError: report?.error ?? null, seesDrafts: hasRole(user.role, 'senior') };
+	return {
+		flows,
+		awaitingReview,
+		refused,
+		importError: report?.error ?? null,
+		seesDrafts: hasRole(user.role, 'senior')
+	};
 };

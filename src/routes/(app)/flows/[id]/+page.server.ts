@@ -7,6 +7,17 @@ import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as staff from '$lib/server/staff/queries';
 import type { Actions, PageServerLoad } from './$types';
+import { collapseSaves } from './history';
+
+/** What the review actions redirect here to say. */
+function notice(q: URLSearchParams): string | null {
+	const published = z.coerce.number().int().min(1).safeParse(q.get('published'));
+	if (q.has('published') && published.success)
+		return `Version ${published.data} is published: new runs start on it; runs under way finish on the version they started on.`;
+	if (q.has('sentBack')) return 'The draft is back with its author, with your comment.';
+	if (q.has('submitted')) return 'The draft is submitted: another senior or a lead reviews it.';
+	return null;
+}
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
@@ -18,7 +29,7 @@ export const load: PageServerLoad = async (event) => {
 		flowLibrary.publishedVersions(id.data),
 		flowLibrary.currentPublished(id.data),
 		senior ? flowLibrary.openDrafts(id.data) : [],
-		senior ? staff.auditFor('flow', id.data, 30) : []
+		senior ? staff.auditFor('flow', id.data, 300) : []
 	]);
 	// A flow that was never published does not exist for technicians.
 	if (!flow || (!senior && versions.length === 0))
@@ -27,7 +38,8 @@ export const load: PageServerLoad = async (event) => {
 		flow,
 		versions,
 		drafts,
-		audit,
+		audit: collapseSaves(audit).slice(0, 40),
+		notice: notice(event.url.searchParams),
 		summary: current?.definition.summary ?? null,
 		current: current?.version ?? null,
 		seesDrafts: senior

@@ -1,7 +1,11 @@
 import { error, fail, redirect } from '@sveltejs/kit';
+import { z } from 'zod';
+import { checkFlow } from '$lib/flows/check';
+import { diffVersions } from '$lib/flows/diff';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
+import * as staff from '$lib/server/staff/queries';
 import type { Actions, PageServerLoad } from './$types';
 import { FlowAuthoringError, statusOf } from './errors';
 import { draftParams } from './schema';
@@ -14,14 +18,36 @@ async function draftOf(params: unknown) {
 	return draft;
 }
 
+/** After an import: the file is a draft now; its problems show in the editor. */
+function importedNotice(n: string | null): string | null {
+	if (n === null) return null;
+	const count = Number(n);
+	if (!Number.isInteger(count) || count < 0) return null;
+	return count === 0
+		? 'Imported: the file passes the check. Review it here, then submit it.'
+		: `Imported with ${count} problem${count === 1 ? '' : 's'}, listed below and marked on the steps. Fix them here, then submit.`;
+}
+
 export const load: PageServerLoad = async (event) => {
-	requireRole(event, 'senior');
+	const user = requireRole(event, 'senior');
 	const draft = await draftOf(event.params);
-	const [flow, basedOn] = await Promise.all([
+	const inReview = draft.status === 'in-review';
+	const [flow, basedOn, refusal, author] = await Promise.all([
 		flowLibrary.getFlow(draft.flowId),
-		draft.basedOnId ? flowLibrary.getVersionById(draft.basedOnId) : undefined
+		draft.basedOnId ? flowLibrary.getVersionById(draft.basedOnId) : undefined,
+		inReview ? authoring.reviewRefusal({ id: user.id, role: user.role }, draft.id) : null,
+		draft.authorId ? staff.findById(draft.authorId) : undefined
 	]);
 	return {
+		review: inReview
+			? {
+					refusal,
+					author: author?.name ?? null,
+					submittedAt: draft.submittedAt,
+					diff: basedOn ? diffVersions(basedOn.definition, draft.definition) : null,
+					stats: checkFlow(draft.definition).stats
+				}
+			: null,
 		flow: { id: draft.flowId, title: flow?.title ?? draft.definition.title },
 		draft: {
 			id: draft.id,
@@ -32,7 +58,8 @@ export const load: PageServerLoad = async (event) => {
 			updatedAt: draft.updatedAt
 		},
 		definition: draft.definition,
-		basedOn: basedOn?.version ?? null
+		basedOn: basedOn?.version ?? null,
+		imported: importedNotice(event.url.searchParams.get('imported'))
 	};
 };
 
@@ -47,5 +74,38 @@ export const actions: Actions = {
 			return fail(statusOf(e), { message: e.message, problems: e.problems.length });
 		}
 		redirect(303, `/flows/${draft.flowId}?submitted=1`);
+	},
+	approve: async (event) => {
+		const user = requireRole(event, 'senior');
+		const draft = await draftOf(event.params);
+		let version: number | null;
+		try {
+			version = (await authoring.approve({ id: user.id, role: user.role }, draft.id)).version;
+		} catch (e) {
+			if (!(e instanceof FlowAuthoringError)) throw e;
+			return fail(statusOf(e), { message: e.message, problems: e.problems.length });
+		}
+		redirect(303, `/flows/${draft.flowId}?published=${version}`);
+	},
+	sendBack: async (event) => {
+		const user = requireRole(event, 'senior');
+		const draft = await draftOf(event.params);
+		const form = sendBackForm.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!form.success) return fail(400, { message: form.error.issues[0].message, comment: '', problems: 0 });
+		try {
+			await authoring.sendBack({ id: user.id, role: user.role }, draft.id, form.data.comment);
+		} catch (e) {
+			if (!(e instanceof FlowAuthoringError)) throw e;
+			return fail(statusOf(e), { message: e.message, comment: form.data.comment, problems: 0 });
+		}
+		redirect(303, `/flows/${draft.flowId}?sentBack=1`);
 	}
 };
+
+const sendBackForm = z.object({
+	comment: z
+		.string()
+		.trim()
+		.min(1, 'Say what needs changing, so the author knows.')
+		.max(4000, 'Keep the comment under 4000 characters.')
+});

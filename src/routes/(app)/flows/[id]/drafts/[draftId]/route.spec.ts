@@ -110,3 +110,64 @@ describe('editor route', () => {
 		expect((await put(ana, { revision: 4, definition: base })).status).toBe(409);
 	});
 });
+
+describe('review route', () => {
+	const post = (user: User, name: 'submit' | 'approve' | 'sendBack', fields: Record<string, string> = {}) => {
+		const body = new FormData();
+		for (const [k, v] of Object.entries(fields)) body.set(k, v);
+		return (actions[name] as (e: unknown) => Promise<unknown>)(event(user, { method: 'POST', body }));
+	};
+
+	it('offers the review to another senior and tells the author why not', async () => {
+		const mine = await load(ana);
+		expect(mine.review?.refusal).toMatch(/You wrote this draft/);
+		expect(mine.review?.author).toBe('Ana');
+		const theirs = await load(ben);
+		expect(theirs.review).toMatchObject({ refusal: null, author: 'Ana' });
+		expect(theirs.review?.diff).not.toBeNull();
+		expect(theirs.review?.stats.steps).toBe(Object.keys(base.steps).length);
+		expect(await library.awaitingReview()).toEqual([
+			expect.objectContaining({ id: draftId, flowId: FLOW, authorName: 'Ana' })
+		]);
+	});
+
+	it('refuses the author approving or sending back their own draft with a clear message', async () => {
+		expect(await post(ana, 'approve')).toMatchObject({
+			status: 403,
+			data: { message: expect.stringMatching(/You wrote this draft, so you cannot approve it/) }
+		});
+		expect(await post(ana, 'sendBack', { comment: 'Looks fine to me' })).toMatchObject({ status: 403 });
+		expect((await load(ana)).draft.status).toBe('in-review');
+	});
+
+	it('sends back with a comment the author then sees; an empty comment is refused', async () => {
+		expect(await post(ben, 'sendBack', { comment: '   ' })).toMatchObject({
+			status: 400,
+			data: { message: expect.stringMatching(/Say what needs changing/) }
+		});
+		await expect(
+			post(ben, 'sendBack', { comment: 'Add the flux-fumes caution to the cleaning step.' })
+		).rejects.toMatchObject({ status: 303, location: `/flows/${FLOW}?sentBack=1` });
+		const data = await load(ana);
+		expect(data.draft).toMatchObject({
+			status: 'draft',
+			reviewComment: 'Add the flux-fumes caution to the cleaning step.'
+		});
+		expect(data.review).toBeNull();
+	});
+
+	it('publishes the approved draft as the next version number', async () => {
+		const before = (await library.currentPublished(FLOW))!.version!;
+		await expect(post(ana, 'submit')).rejects.toMatchObject({ status: 303 });
+		await expect(post(tom, 'approve')).rejects.toMatchObject({ status: 403 });
+		await expect(post(ben, 'approve')).rejects.toMatchObject({
+			status: 303,
+			location: `/flows/${FLOW}?published=${before + 1}`
+		});
+		const now = (await library.currentPublished(FLOW))!;
+		expect(now).toMatchObject({ id: draftId, version: before + 1, status: 'published' });
+		expect(await library.awaitingReview()).toEqual([]);
+		// Published: approving again is refused, with the reason.
+		expect(await post(ben, 'approve')).toMatchObject({ status: 409 });
+	});
+});
