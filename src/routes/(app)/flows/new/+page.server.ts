@@ -5,7 +5,7 @@ import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import type { Actions, PageServerLoad } from './$types';
 import { blankForm, MAX_UPLOAD_BYTES } from './schema';
-import { starterFlow } from './starter';
+import { newFlow } from '$lib/flows/edit';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'senior');
@@ -34,9 +34,8 @@ export const actions: Actions = {
 		}
 		let draftId: string;
 		try {
-			draftId = (
-				await authoring.createDraft(user, { definition: starterFlow(form.data.id, form.data.title) })
-			).id;
+			draftId = (await authoring.createDraft(user, { definition: newFlow(form.data.id, form.data.title) }))
+				.id;
 		} catch (e) {
 			if (!(e instanceof authoring.FlowAuthoringError)) throw e;
 			const errors: Record<string, string> = { id: e.message };
