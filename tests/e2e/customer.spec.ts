@@ -141,6 +141,34 @@ test('report → mail → customer approves and pays → job paid and approved �
 	await expect(rows.filter({ hasText: 'findings and quote' })).toHaveCount(1);
 	await expect(rows.filter({ hasText: 'Receipt' })).toHaveCount(1);
 
+	// Refunds are for the lead: the technician has no refund button; the lead refunds part of the
+	// payment (a refund beyond what was paid is refused with the figures) and the job shows it.
+	await expect(side.getByRole('button', { name: 'Refund…' })).toHaveCount(0);
+	await lead.goto(`/jobs/${job.id}`);
+	const leadSide = lead.locator('[data-section="customer"]');
+	await leadSide.getByRole('button', { name: 'Refund…' }).click();
+	const amount = leadSide.getByLabel('Amount to refund (EUR)');
+	await expect(amount).toHaveValue('129.00');
+	await amount.fill('129.01');
+	await leadSide.getByRole('button', { name: 'Refund', exact: true }).click();
+	await expect(leadSide.getByRole('alert')).toHaveText(
+		'At most €129.00 can be refunded: €129.00 paid, €0.00 refunded.'
+	);
+	await expect(amount).toHaveValue('129.01');
+	await amount.fill('29');
+	await leadSide.getByLabel(/Reason/).fill('Back cover not replaced');
+	await leadSide.getByRole('button', { name: 'Refund', exact: true }).click();
+	await expect(leadSide.getByTestId('refund-feedback')).toHaveText('Refunded €29.00.');
+	await expect(leadSide.getByTestId('refund-row')).toHaveAttribute('data-status', 'succeeded');
+	await expect(leadSide.getByTestId('refund-row')).toContainText('Back cover not replaced');
+	await expect(leadSide.getByTestId('total-paid')).toHaveText('€129.00');
+	await expect(leadSide.getByTestId('total-refunded')).toHaveText('€29.00');
+	await expect(leadSide.getByTestId('total-kept')).toHaveText('€100.00');
+	await expect(leadSide.getByTestId('payment-status')).toHaveText('Paid, €29.00 refunded');
+	await expect(lead.locator('[data-section="quote"]').getByTestId('quote-paid')).toHaveText('€100.00');
+	await page.reload();
+	await expect(quote.getByTestId('quote-paid')).toHaveText('€100.00');
+
 	// Revoking the link closes it with the same plain page as a made-up one.
 	await side.getByRole('button', { name: 'Revoke' }).click();
 	await expect(side.getByText('Link revoked')).toBeVisible();

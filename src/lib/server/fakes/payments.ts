@@ -1,8 +1,9 @@
 // A local stand-in for the few payment-service endpoints Tidemark uses, for the demo and tests:
 // checkout sessions (create, retrieve) in the service's own wire format, so the official SDK talks
 // to it unchanged (host/port/protocol options), a simple checkout page where a test payment
-// succeeds, is declined or is cancelled, and signed webhooks to the app, signed the way the service
-// signs them (the SDK's generateTestHeaderString). No card fields: nothing to type, nothing stored.
+// succeeds, is declined or is cancelled, refunds of a paid payment (whole or part), and signed
+// webhooks to the app, signed the way the service signs them (the SDK's generateTestHeaderString).
+// No card fields: nothing to type, nothing stored.
 import crypto from 'node:crypto';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -31,13 +32,43 @@ export type FakeSession = {
 	livemode: false;
 };
 
+export type FakeRefund = {
+	id: string;
+	object: 'refund';
+	amount: number;
+	charge: string;
+	currency: string;
+	created: number;
+	metadata: Record<string, string>;
+	payment_intent: string;
+	reason: string | null;
+	status: 'pending' | 'succeeded' | 'failed' | 'canceled';
+	failure_reason?: string;
+};
+
+/** The charge behind a paid session (only the fields the refund events carry). */
+export type FakeCharge = {
+	id: string;
+	object: 'charge';
+	amount: number;
+	amount_captured: number;
+	amount_refunded: number;
+	currency: string;
+	created: number;
+	paid: true;
+	payment_intent: string;
+	refunded: boolean;
+	status: 'succeeded';
+	metadata: Record<string, string>;
+};
+
 export type FakeEvent = {
 	id: string;
 	object: 'event';
 	api_version: string;
 	created: number;
 	type: string;
-	data: { object: FakeSession };
+	data: { object: FakeSession | FakeRefund | FakeCharge };
 	livemode: false;
 	pending_webhooks: number;
 	request: { id: null; idempotency_key: null };
@@ -54,10 +85,15 @@ export type FakePayments = {
 	secretKey: string;
 	webhookSecret: string;
 	sessions: Map<string, FakeSession>;
+	/** Charges of paid sessions, by payment intent id. */
+	charges: Map<string, FakeCharge>;
+	refunds: Map<string, FakeRefund>;
 	events: FakeEvent[];
 	deliveries: Delivery[];
 	/** What the checkout page's buttons do, for tests: the webhook is delivered before it resolves. */
 	complete: (sessionId: string, outcome: Outcome) => Promise<{ redirect: string; event: FakeEvent | null }>;
+	/** Resolves once every webhook the fake has started sending (e.g. after a refund) was delivered. */
+	settled: () => Promise<void>;
 	/** Sends an already delivered event again, exactly as signed before (a duplicate delivery). */
 	redeliver: (eventId: string) => Promise<Delivery>;
 	stop: () => Promise<void>;
@@ -182,6 +218,9 @@ export async function startFakePayments(options: FakePaymentsOptions): Promise<F
 	const webhookSecret = options.webhookSecret ?? `whsec_fake_${random(24)}`;
 	const signer = new Stripe(secretKey);
 	const sessions = new Map<string, FakeSession>();
+	const charges = new Map<string, FakeCharge>();
+	const refunds = new Map<string, FakeRefund>();
+	const sending = new Set<Promise<unknown>>();
 	const itemsBySession = new Map<string, LineItem[]>();
 	const byIdempotencyKey = new Map<string, string>();
 	const events: FakeEvent[] = [];
@@ -209,14 +248,14 @@ export async function startFakePayments(options: FakePaymentsOptions): Promise<F
 	}
 
 	/** Like the real service: one signed delivery now, and a few more later if the app did not take it. */
-	async function emit(type: string, session: FakeSession): Promise<FakeEvent> {
+	async function emit(type: string, object: FakeEvent['data']['object']): Promise<FakeEvent> {
 		const event: FakeEvent = {
 			id: `evt_test_${random(24)}`,
 			object: 'event',
 			api_version: Stripe.API_VERSION ?? 'fake',
 			created: Math.floor(Date.now() / 1000),
 			type,
-			data: { object: { ...session } },
+			data: { object: structuredClone(object) },
 			livemode: false,
 			pending_webhooks: 1,
 			request: { id: null, idempotency_key: null }
@@ -245,11 +284,26 @@ export async function startFakePayments(options: FakePaymentsOptions): Promise<F
 		if (session.status !== 'open') return { redirect: session.cancel_url, event: null };
 		let event: FakeEvent;
 		if (outcome === 'succeed') {
+			const intent = `pi_test_${random(18)}`;
 			Object.assign(session, {
 				status: 'complete',
 				payment_status: 'paid',
-				payment_intent: `pi_test_${random(18)}`,
+				payment_intent: intent,
 				url: null
+			});
+			charges.set(intent, {
+				id: `ch_test_${random(18)}`,
+				object: 'charge',
+				amount: session.amount_total,
+				amount_captured: session.amount_total,
+				amount_refunded: 0,
+				currency: session.currency,
+				created: Math.floor(Date.now() / 1000),
+				paid: true,
+				payment_intent: intent,
+				refunded: false,
+				status: 'succeeded',
+				metadata: { ...session.metadata }
 			});
 			event = await emit('checkout.session.completed', session);
 			return { redirect: session.success_url.replace('{CHECKOUT_SESSION_ID}', session.id), event };
@@ -268,6 +322,59 @@ export async function startFakePayments(options: FakePaymentsOptions): Promise<F
 		Object.assign(session, { status: 'expired', url: null });
 		event = await emit('checkout.session.expired', session);
 		return { redirect: session.cancel_url, event };
+	}
+
+	/**
+	 * Refunds part or all of a paid charge, as the service does: refused beyond what is left
+	 * unrefunded; succeeds at once (test mode); `refund.created` and then `charge.refunded` are sent
+	 * after the API has answered, as separate signed events.
+	 */
+	function refund(form: Record<string, unknown>): FakeRefund {
+		const intentId = typeof form.payment_intent === 'string' ? form.payment_intent : '';
+		const charge =
+			charges.get(intentId) ?? [...charges.values()].find((c) => c.id === form.charge && form.charge);
+		if (!charge)
+			throw new ApiError(
+				400,
+				`No such payment_intent: '${intentId || String(form.charge ?? '')}'`,
+				'payment_intent'
+			);
+		const left = charge.amount - charge.amount_refunded;
+		const amount = form.amount === undefined ? left : Number(form.amount);
+		if (!Number.isSafeInteger(amount) || amount < 1)
+			throw new ApiError(400, 'Invalid positive integer', 'amount');
+		if (left === 0) throw new ApiError(400, `Charge ${charge.id} has already been refunded.`, 'charge');
+		if (amount > left)
+			throw new ApiError(
+				400,
+				`Refund amount (${amount}) is greater than unrefunded amount on charge (${left}).`,
+				'amount'
+			);
+		const created: FakeRefund = {
+			id: `re_test_${random(18)}`,
+			object: 'refund',
+			amount,
+			charge: charge.id,
+			currency: charge.currency,
+			created: Math.floor(Date.now() / 1000),
+			metadata: Object.fromEntries(
+				Object.entries((form.metadata ?? {}) as Record<string, unknown>).map(([k, v]) => [k, String(v)])
+			),
+			payment_intent: charge.payment_intent,
+			reason: typeof form.reason === 'string' ? form.reason : null,
+			status: 'succeeded'
+		};
+		refunds.set(created.id, created);
+		charge.amount_refunded += amount;
+		charge.refunded = charge.amount_refunded === charge.amount;
+		const snapshot = structuredClone(charge);
+		const p = (async () => {
+			await new Promise((r) => setImmediate(r));
+			await emit('refund.created', created);
+			await emit('charge.refunded', snapshot);
+		})().finally(() => sending.delete(p));
+		sending.add(p);
+		return created;
 	}
 
 	function authorised(req: http.IncomingMessage) {
@@ -348,6 +455,15 @@ export async function startFakePayments(options: FakePaymentsOptions): Promise<F
 				if (typeof key === 'string') byIdempotencyKey.set(key, session.id);
 				return sendJson(res, 200, session);
 			}
+			if (req.method === 'POST' && url.pathname === '/v1/refunds') {
+				const key = req.headers['idempotency-key'];
+				const body = await readBody(req);
+				const again = typeof key === 'string' ? byIdempotencyKey.get(key) : undefined;
+				if (again) return sendJson(res, 200, refunds.get(again));
+				const created = refund(parseForm(body));
+				if (typeof key === 'string') byIdempotencyKey.set(key, created.id);
+				return sendJson(res, 200, created);
+			}
 			const m = url.pathname.match(/^\/v1\/checkout\/sessions\/([\w]+)$/);
 			if (req.method === 'GET' && m) {
 				const session = sessions.get(m[1]);
@@ -419,9 +535,14 @@ export async function startFakePayments(options: FakePaymentsOptions): Promise<F
 		secretKey,
 		webhookSecret,
 		sessions,
+		charges,
+		refunds,
 		events,
 		deliveries,
 		complete,
+		async settled() {
+			while (sending.size) await Promise.all([...sending]);
+		},
 		async redeliver(eventId) {
 			const signed = signedPayloads.get(eventId);
 			if (!signed) throw new Error(`No event ${eventId}`);

@@ -1,28 +1,16 @@
 import { eq, or } from 'drizzle-orm';
 import Stripe from 'stripe';
 import { getDb, type Tx } from '$lib/server/db';
-import { paymentEvents, payments, type Payment, type PaymentStatus } from '$lib/server/db/schema/payments';
+import { paymentEvents, payments } from '$lib/server/db/schema/payments';
 import { record } from '$lib/server/audit';
+import { notifyPaymentChange } from './changes';
 import { paymentsClient, paymentsConfig } from './config';
+import { applyRefund, noteChargeRefunded } from './refunds';
+
+export { onPaymentChange, type PaymentChangeHandler } from './changes';
 
 export type WebhookResponse = { received: boolean; duplicate?: boolean; outcome?: string; message?: string };
 export type WebhookResult = { status: number; body: WebhookResponse };
-
-/**
- * Called inside the webhook's transaction when a payment of `referenceType` changes status, so a
- * domain (e.g. jobs) can record it and queue the receipt mail atomically with the change.
- */
-export type PaymentChangeHandler = (tx: Tx, payment: Payment, previous: PaymentStatus) => Promise<void>;
-const handlers = new Map<string, PaymentChangeHandler[]>();
-
-export function onPaymentChange(referenceType: string, handler: PaymentChangeHandler) {
-	handlers.set(referenceType, [...(handlers.get(referenceType) ?? []), handler]);
-	return () =>
-		handlers.set(
-			referenceType,
-			(handlers.get(referenceType) ?? []).filter((h) => h !== handler)
-		);
-}
 
 const refuse = (message: string): WebhookResult => ({ status: 400, body: { received: false, message } });
 
@@ -61,7 +49,7 @@ export async function processWebhook(rawBody: string, signature: string | null):
 	});
 }
 
-type Applied = { outcome: string; paymentId: string | null };
+export type Applied = { outcome: string; paymentId: string | null };
 
 async function apply(tx: Tx, event: Stripe.Event): Promise<Applied> {
 	switch (event.type) {
@@ -76,6 +64,14 @@ async function apply(tx: Tx, event: Stripe.Event): Promise<Applied> {
 			return change(tx, event, event.data.object, 'failed', 'The payment was declined.');
 		case 'checkout.session.expired':
 			return change(tx, event, event.data.object, 'failed', 'The checkout expired before payment.');
+		// A refund is applied from the refund's own events, once per refund whichever arrives first;
+		// `charge.refunded` (sent beside them) only says how much of the charge is refunded so far.
+		case 'refund.created':
+		case 'refund.updated':
+		case 'refund.failed':
+			return applyRefund(tx, event, event.data.object);
+		case 'charge.refunded':
+			return noteChargeRefunded(tx, event.data.object);
 		default:
 			return { outcome: `ignored: ${event.type}`, paymentId: null };
 	}
@@ -131,6 +127,10 @@ async function change(
 		.set({
 			status: to,
 			providerSessionId: session.id,
+			providerPaymentIntent:
+				typeof session.payment_intent === 'string'
+					? session.payment_intent
+					: (session.payment_intent?.id ?? payment.providerPaymentIntent),
 			paidAt: to === 'paid' ? new Date(event.created * 1000) : null,
 			failureReason: to === 'failed' ? (reason ?? null) : null,
 			updatedAt: now
@@ -150,6 +150,6 @@ async function change(
 			currency: payment.currency
 		}
 	});
-	for (const handler of handlers.get(payment.referenceType) ?? []) await handler(tx, updated, payment.status);
+	await notifyPaymentChange(tx, updated, payment.status);
 	return { outcome: `applied: ${to}`, paymentId: payment.id };
 }

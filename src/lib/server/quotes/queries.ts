@@ -3,7 +3,7 @@
  * approve and decline by the customer, and what is still to pay. Totals always come from
  * quoteTotals() in $lib/domain/money with the tax settings copied onto the version.
  */
-import { and, desc, eq, like, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, like, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb, type DB, type Tx } from '$lib/server/db';
 import { quotes, type Quote } from '$lib/server/db/schema/quotes';
@@ -196,17 +196,19 @@ export async function paymentsForJob(jobId: string, db?: DB | Tx) {
 		.orderBy(desc(payments.createdAt));
 }
 
-/** Confirmed money in, minus refunds, over the whole job. */
+/** Confirmed money in, minus confirmed refunds, over the whole job. */
 export async function paidForJob(jobId: string, db?: DB | Tx): Promise<number> {
 	const d = db ?? (await getDb());
 	const [{ paid }] = await d
-		.select({ paid: sql<number>`coalesce(sum(${payments.amountMinor}), 0)::int` })
+		.select({
+			paid: sql<number>`coalesce(sum(${payments.amountMinor} - ${payments.refundedMinor}), 0)::int`
+		})
 		.from(payments)
 		.where(
 			and(
 				eq(payments.referenceType, 'job'),
 				like(payments.referenceId, `${jobId}:%`),
-				eq(payments.status, 'paid')
+				inArray(payments.status, ['paid', 'refunded'])
 			)
 		);
 	return paid;

@@ -12,7 +12,7 @@ import { record } from '$lib/server/audit';
 import { enqueue } from '$lib/server/mail/queue';
 import { paymentReceipt, readyToCollect, reportReady, type ShopInfo } from '$lib/server/mail/templates';
 import { createCheckout } from '$lib/server/payments/checkout';
-import { onPaymentChange } from '$lib/server/payments/webhook';
+import { onPaymentChange, type RefundChange } from '$lib/server/payments/changes';
 import { absoluteUrl } from '$lib/server/public-url';
 import { getReport, getShop, shopSchema } from '$lib/server/settings/queries';
 import { settings as settingsTable } from '$lib/server/db/schema/settings';
@@ -130,17 +130,22 @@ export async function startPayment(jobId: string, quoteId: string, kind: Payment
 
 /**
  * Webhook effect for job payments, inside the webhook's transaction: the quote's paid amount
- * follows the payment (a refund takes it back), and a receipt is queued for a confirmed payment.
+ * follows the payment (a confirmed refund takes its amount back), and a receipt is queued for a
+ * confirmed payment.
  */
-export async function applyJobPayment(tx: Tx, payment: Payment, previous: PaymentStatus) {
+export async function applyJobPayment(
+	tx: Tx,
+	payment: Payment,
+	previous: PaymentStatus,
+	refund?: RefundChange
+) {
 	const ref = quoteQueries.parsePaymentReference(payment.referenceId);
 	if (!ref) return;
-	const delta =
-		payment.status === 'paid' && previous !== 'paid'
+	const delta = refund
+		? -refund.amountMinor
+		: payment.status === 'paid' && previous !== 'paid'
 			? payment.amountMinor
-			: payment.status === 'refunded' && previous === 'paid'
-				? -payment.amountMinor
-				: 0;
+			: 0;
 	if (delta === 0) return;
 	const [quote] = await tx
 		.update(quotes)
@@ -161,9 +166,15 @@ export async function applyJobPayment(tx: Tx, payment: Payment, previous: Paymen
 		action: delta > 0 ? 'quote.paid' : 'quote.refunded',
 		targetType: 'job',
 		targetId: ref.jobId,
-		details: { paymentId: payment.id, quoteId: quote.id, amountMinor: payment.amountMinor, paidTotal }
+		details: {
+			paymentId: payment.id,
+			quoteId: quote.id,
+			amountMinor: Math.abs(delta),
+			paidTotal,
+			...(refund ? { refundId: refund.refundId } : {})
+		}
 	});
-	if (delta < 0) return;
+	if (refund) return;
 	const [job] = await tx.select().from(jobs).where(eq(jobs.id, ref.jobId));
 	const customer = await customerOf(tx, job);
 	if (!customer?.email) return;

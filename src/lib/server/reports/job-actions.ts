@@ -3,7 +3,9 @@ import { fail, type RequestEvent } from '@sveltejs/kit';
 import { z } from 'zod';
 import * as quotes from '$lib/server/quotes/queries';
 import { getMoney } from '$lib/server/settings/queries';
-import { parseLines, type RawLine } from '$lib/quotes/input';
+import { parseAmount, parseLines, type RawLine } from '$lib/quotes/input';
+import { formatMoney } from '$lib/domain/money';
+import * as refunds from '$lib/server/payments/refunds';
 import * as links from './links';
 import { ReportRuleError, sendReport as send } from './customer';
 
@@ -73,4 +75,59 @@ export async function revokeLink(event: RequestEvent<{ id: string }>, user: User
 		ok: true,
 		message: done ? 'Link revoked: it now shows “no longer valid”.' : 'That link was already closed.'
 	};
+}
+
+const refundForm = z.object({
+	paymentId: z.uuid('Choose a payment.'),
+	amount: z.string().max(30, 'Enter the amount as a number, e.g. 12.50.'),
+	reason: z.string().trim().max(500, 'Keep the reason under 500 characters.').default('')
+});
+
+/**
+ * A lead refunds all or part of a paid payment of this job. The typed amount (major units) becomes
+ * integer minor units by string arithmetic; the refund waits briefly for the service's webhook so
+ * the page can usually say "refunded" at once.
+ */
+export async function refund(event: RequestEvent<{ id: string }>, user: User) {
+	const raw = Object.fromEntries(await event.request.formData());
+	const parsed = refundForm.safeParse(raw);
+	const kept = { amount: String(raw.amount ?? ''), reason: String(raw.reason ?? '') };
+	const paymentId = typeof raw.paymentId === 'string' ? raw.paymentId : '';
+	const refused = (status: number, message: string) =>
+		fail(status, { action: 'refund', ok: false, message, paymentId, ...kept });
+	if (!parsed.success) return refused(400, parsed.error.issues[0]?.message ?? 'Check the refund.');
+	const scope = { type: 'job', idPrefix: `${event.params.id}:` };
+	const payment = await refunds.paymentInScope(parsed.data.paymentId, scope);
+	if (!payment) return refused(404, 'No such payment on this job.');
+	const currency = payment.currency.toUpperCase();
+	if (!parsed.data.amount.trim()) return refused(400, 'Enter the amount to refund.');
+	const amount = parseAmount(parsed.data.amount, currency);
+	if (!amount.ok)
+		return refused(400, amount.error.replace('A price', 'A refund').replace(/\bprice\b/g, 'amount'));
+	if (amount.value === 0) return refused(400, 'The refund must be more than zero.');
+	try {
+		const pending = await refunds.requestRefund(user.id, {
+			paymentId: payment.id,
+			amountMinor: amount.value,
+			reason: parsed.data.reason,
+			scope
+		});
+		const done = await refunds.settled(pending.id);
+		const m = formatMoney(amount.value, currency, 'en-GB');
+		if (done?.status === 'failed')
+			return refused(502, `The refund of ${m} failed: ${done.failureReason ?? 'no reason given'}`);
+		return {
+			action: 'refund',
+			ok: true,
+			paymentId,
+			message:
+				done?.status === 'succeeded'
+					? `Refunded ${m}.`
+					: `Refund of ${m} sent; it shows as refunded once the payment service confirms it.`
+		};
+	} catch (e) {
+		if (e instanceof refunds.RefundRuleError)
+			return refused(e.code === 'not-found' ? 404 : e.code === 'service' ? 502 : 400, e.message);
+		throw e;
+	}
 }

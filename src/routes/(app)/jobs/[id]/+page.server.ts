@@ -80,6 +80,11 @@ export const actions: Actions = {
 		return quoteActions.revokeLink(event, user);
 	},
 
+	refund: async (event) => {
+		const user = requireRole(event, 'lead');
+		return quoteActions.refund(event, user);
+	},
+
 	consent: async (event) => {
 		const user = requireRole(event, 'technician');
 		try {
