@@ -1,39 +1,12 @@
 import { json } from '@sveltejs/kit';
 import type { z } from 'zod';
+import { badRequest as shared, type ApiError } from '$lib/server/http';
 import { JobRuleError } from './queries';
 
-/** Dates become ISO strings on the wire; the API's response types say so. */
-export type Jsonify<T> = T extends Date
-	? string
-	: T extends readonly (infer U)[]
-		? Jsonify<U>[]
-		: T extends object
-			? { [K in keyof T]: Jsonify<T[K]> }
-			: T;
-
-export type ApiIssue = { path: string; message: string };
-export type ApiError = { message: string; issues?: ApiIssue[] };
-
-export function issuesOf(error: z.ZodError): ApiIssue[] {
-	return error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message }));
-}
+export { issuesOf, readJson, type ApiError, type ApiIssue, type Jsonify } from '$lib/server/http';
 
 export function badRequest(error: z.ZodError, message = 'Some fields need attention.') {
-	return json({ message, issues: issuesOf(error) } satisfies ApiError, { status: 400 });
-}
-
-/** Reads a JSON body, answering 400 (not 500) for a body that is not JSON. */
-export async function readJson(
-	request: Request
-): Promise<{ ok: true; body: unknown } | { ok: false; response: Response }> {
-	try {
-		return { ok: true, body: await request.json() };
-	} catch {
-		return {
-			ok: false,
-			response: json({ message: 'The body must be JSON.' } satisfies ApiError, { status: 400 })
-		};
-	}
+	return shared(error, message);
 }
 
 /** A rule refusal as an HTTP answer: 404 for a missing job, 409 for a move the workflow forbids. */
