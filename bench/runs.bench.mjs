@@ -14,6 +14,10 @@ import { PGlite } from '@electric-sql/pglite';
 import { ensureBuild, freePort, median, startServer } from './lib.mjs';
 
 const CLIENTS = 16;
+// The paced window: each of the 16 clients sends an event every 250 ms (64 events/s in all), far
+// more than a bench of technicians answering steps by hand, but below saturation, so the figure
+// is the event's own latency rather than the queue that a flat-out closed loop builds.
+const PACED_RATE = Number(process.env.BENCH_PACED_RATE ?? 64);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
 const PASSWORD = 'bench-demo-password';
 const FLOW = 'restart-loop-after-liquid';
@@ -104,6 +108,8 @@ try {
 	const { result, times } = await load(SECONDS);
 	const loop = await asLead('GET', '/api/diagnostics/event-loop');
 
+	const paced = await load(SECONDS, PACED_RATE);
+
 	const p50 = pct(times, 50);
 	const p95 = pct(times, 95);
 	const insert = await bareInsert();
@@ -112,7 +118,16 @@ try {
 			`non-2xx ${result.non2xx}, errors ${result.errors}`
 	);
 	console.log(
-		`step-event round trip: p50 ${fmt(p50)}, p95 ${fmt(p95)}, p99 ${fmt(pct(times, 99))} (goal p95 <= 15 ms) ${p95 <= 15 ? 'OK' : 'OVER GOAL'}`
+		`step-event round trip, flat out: p50 ${fmt(p50)}, p95 ${fmt(p95)}, p99 ${fmt(pct(times, 99))} (goal p95 <= 15 ms) ${p95 <= 15 ? 'OK' : 'OVER GOAL'}`
+	);
+	const paced95 = pct(paced.times, 95);
+	console.log(
+		`step-event round trip, paced at ${PACED_RATE} events/s over ${CLIENTS} clients: p50 ${fmt(pct(paced.times, 50))}, ` +
+			`p95 ${fmt(paced95)}, p99 ${fmt(pct(paced.times, 99))} (${paced.times.length} events; goal p95 <= 15 ms) ${paced95 <= 15 ? 'OK' : 'OVER GOAL'}`
+	);
+	console.log(
+		`  flat out, each of ${CLIENTS} clients waits behind the others: p50 is about ${CLIENTS} x the server time per event ` +
+			`(${(1000 / result.requests.average).toFixed(2)} ms at ${Math.round(result.requests.average)} req/s).`
 	);
 	console.log(
 		`bare single-row insert (PGlite on disk, in the bench process): median ${fmt(insert.median)}, p95 ${fmt(insert.p95)}; ` +
@@ -130,7 +145,7 @@ try {
 	);
 
 	/** Runs autocannon for `seconds`; every response time is kept for exact percentiles. */
-	async function load(seconds) {
+	async function load(seconds, overallRate) {
 		let next = 0;
 		const times = [];
 		const event = (type) => ({
@@ -146,6 +161,7 @@ try {
 			url: base,
 			connections: CLIENTS,
 			duration: seconds,
+			...(overallRate ? { overallRate } : {}),
 			headers: { cookie: tech, 'content-type': 'application/json', origin },
 			requests: [event('ANSWER'), event('BACK')]
 		});
