@@ -3,7 +3,7 @@
  * every event is re-validated against the compiled machine of the pinned version, restored from the
  * stored snapshot, and the step, the snapshot and the run row change in one transaction.
  */
-import { and, asc, desc, eq, isNull, ne, sql } from 'drizzle-orm';
+import { asc, desc, eq, sql } from 'drizzle-orm';
 import { createActor } from 'xstate';
 import { getDb, type DB, type Tx } from '$lib/server/db';
 import { flows, flowVersions, users } from '$lib/server/db/schema';
@@ -167,8 +167,9 @@ export async function recordEvent(
 ): Promise<RunEventResult> {
 	const db = await getDb();
 	return db.transaction(async (tx) => {
-		// One round trip locks the run, looks up the idempotency key and numbers the next step row:
-		// an event costs four statements in all (this, the step row, the run row, and a BACK's revision).
+		// One round trip locks the run, looks up the idempotency key, numbers the next step row and
+		// finds the answer a BACK revises; one more writes everything (PGlite runs each statement on
+		// the main thread, so an event is two statements between BEGIN and COMMIT).
 		const [locked] = isUuid(runId)
 			? await tx
 					.select({
@@ -176,14 +177,21 @@ export async function recordEvent(
 						seen: sql<RunEventResult | null>`(select rs.result from run_steps rs
 							where rs.run_id = runs.id and rs.idempotency_key = ${event.idempotencyKey})`,
 						seq: sql<number>`(select coalesce(max(rs.seq), 0)::int + 1 from run_steps rs
-							where rs.run_id = runs.id)`
+							where rs.run_id = runs.id)`,
+						// The answer a BACK would revise: the newest one still standing.
+						last: sql<{
+							id: number;
+							seq: number;
+						} | null>`(select json_build_object('id', rs.id, 'seq', rs.seq)
+							from run_steps rs where rs.run_id = runs.id and rs.kind <> 'back' and rs.superseded_at is null
+							order by rs.seq desc limit 1)`
 					})
 					.from(runs)
 					.where(eq(runs.id, runId))
 					.for('update', { of: runs })
 			: [];
 		if (!locked) throw new RunRuleError(404, 'not-found', 'No run with this id.');
-		const { run, seen, seq } = locked;
+		const { run, seen, seq, last } = locked;
 		if (seen) return seen;
 
 		if (run.status !== 'in-progress')
@@ -251,18 +259,8 @@ export async function recordEvent(
 		if (after.context.path === before.context.path)
 			throw invalid('The flow does not accept this answer here.');
 
-		if (event.type === 'BACK') {
-			const [last] = await tx
-				.select({ id: runSteps.id, seq: runSteps.seq })
-				.from(runSteps)
-				.where(and(eq(runSteps.runId, runId), ne(runSteps.kind, 'back'), isNull(runSteps.supersededAt)))
-				.orderBy(desc(runSteps.seq))
-				.limit(1);
-			if (last) {
-				await tx.update(runSteps).set({ supersededAt: at }).where(eq(runSteps.id, last.id));
-				answer = { back: { revised: last.seq } };
-			}
-		}
+		const revises = event.type === 'BACK' ? last : null;
+		if (revises) answer = { back: { revised: revises.seq } };
 
 		const done = after.status === 'done';
 		const currentStep = String(after.value);
@@ -283,32 +281,20 @@ export async function recordEvent(
 			updatedAt: at
 		};
 		const result: RunEventResult = { seq, state: stateOf(next) };
-		await tx.insert(runSteps).values({
-			runId,
-			seq,
-			stepId: run.currentStep,
-			kind,
-			answer,
-			notes: event.notes?.trim() ?? '',
-			actorId: actor.id,
-			enteredAt: run.updatedAt,
-			answeredAt: at,
-			idempotencyKey: event.idempotencyKey,
-			result
-		});
-		await tx
-			.update(runs)
-			.set({
-				snapshot,
-				currentStep,
-				status: next.status,
-				verdictCode,
-				verdictStep,
-				dataReachable: next.dataReachable,
-				finishedAt: next.finishedAt,
-				updatedAt: at
-			})
-			.where(eq(runs.id, runId));
+		// The step row, a BACK's revision and the run row in one statement (data-modifying CTEs).
+		const json = (value: unknown) => sql`${JSON.stringify(value)}::jsonb`;
+		const time = (value: Date | null) => sql`${value ? value.toISOString() : null}::timestamptz`;
+		await tx.execute(sql`
+			with step as (
+				insert into run_steps (run_id, seq, step_id, kind, answer, notes, actor_id, entered_at,
+					answered_at, idempotency_key, result)
+				values (${runId}, ${seq}, ${run.currentStep}, ${kind}, ${json(answer)}, ${event.notes?.trim() ?? ''},
+					${actor.id}, ${time(run.updatedAt)}, ${time(at)}, ${event.idempotencyKey}, ${json(result)})
+			)${revises ? sql`, revised as (update run_steps set superseded_at = ${time(at)} where id = ${revises.id})` : sql``}
+			update runs set snapshot = ${json(snapshot)}, current_step = ${currentStep}, status = ${next.status},
+				verdict_code = ${verdictCode}, verdict_step = ${verdictStep}, data_reachable = ${next.dataReachable},
+				finished_at = ${time(next.finishedAt)}, updated_at = ${time(at)}
+			where id = ${runId}`);
 		// Insights: the finished run's flat facts row, in this transaction (src/lib/server/insights/facts.ts).
 		if (done) await recordRunFinished(tx, runId);
 		if (done)
