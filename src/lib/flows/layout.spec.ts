@@ -3,7 +3,15 @@ import dagre from '@dagrejs/dagre';
 import { describe, expect, it, vi } from 'vitest';
 import { checkFlow } from './check';
 import { addStep, setExit, setStepField } from './edit';
-import { createLayouter, layoutFlow, NODE_SIZE, structureKey, type LayoutNode } from './layout';
+import {
+	createLayouter,
+	layoutFlow,
+	NODE_SIZE,
+	patchPlacement,
+	placeFlow,
+	structureKey,
+	type LayoutNode
+} from './layout';
 import { parseFlow } from './parse';
 import type { FlowDefinition } from './schema';
 
@@ -107,5 +115,94 @@ describe('createLayouter', () => {
 		layouter(must(addStep(def, 'verdict')));
 		expect(spy).toHaveBeenCalledTimes(2);
 		spy.mockRestore();
+	});
+});
+
+describe('patchPlacement', () => {
+	const def = shipped('no-power-after-liquid');
+	const before = placeFlow(def);
+
+	it('keeps every placed node where it was when only an arrow moves', () => {
+		const [a, b] = Object.keys(def.steps).filter((id) => def.steps[id].kind !== 'verdict');
+		const moved = must(setExit(def, a, 0, { next: b }));
+		expect(patchPlacement(before, moved)).toBe(before);
+	});
+
+	it('places a new step and a missing target near their neighbours, overlapping nothing', () => {
+		let changed = must(addStep(def, 'test', def.start));
+		changed = must(setExit(changed, def.start, 0, { next: 'nowhere' }));
+		const patched = patchPlacement(before, changed);
+		for (const [id, c] of before.centres)
+			if (patched.centres.has(id)) expect(patched.centres.get(id)).toEqual(c);
+		const l = layoutFlow(changed, [], patched);
+		expect(l.nodes.map((n) => n.id)).toEqual(expect.arrayContaining(['new-test', `missing:${def.start}:0`]));
+		for (let i = 0; i < l.nodes.length; i++)
+			for (let j = i + 1; j < l.nodes.length; j++)
+				expect(overlap(l.nodes[i], l.nodes[j]), `${l.nodes[i].id} / ${l.nodes[j].id}`).toBe(false);
+		// The missing node hangs below the step whose answer names it.
+		const start = patched.centres.get(def.start)!;
+		expect(patched.centres.get(`missing:${def.start}:0`)!.y).toBeGreaterThan(start.y);
+		expect(patched.width).toBeGreaterThanOrEqual(before.width);
+	});
+
+	it('lays out a whole flow from nothing with no overlaps', () => {
+		const l = layoutFlow(def, [], patchPlacement({ centres: new Map(), width: 0, height: 0 }, def));
+		for (let i = 0; i < l.nodes.length; i++)
+			for (let j = i + 1; j < l.nodes.length; j++) expect(overlap(l.nodes[i], l.nodes[j])).toBe(false);
+	});
+});
+
+describe('createLayouter with a background placer', () => {
+	const def = shipped('no-power-after-liquid');
+
+	it('never runs dagre in place for a big flow: patched positions first, the placer’s when they arrive', async () => {
+		const spy = vi.spyOn(dagre, 'layout');
+		let release!: () => void;
+		const place = vi.fn(
+			(d: FlowDefinition) =>
+				new Promise<ReturnType<typeof placeFlow>>((r) => (release = () => r(placeFlow(d))))
+		);
+		const onPlaced = vi.fn();
+		const layouter = createLayouter({ place, syncLimit: 5, onPlaced });
+		const first = layouter(def);
+		expect(first.provisional).toBe(true);
+		expect(spy).not.toHaveBeenCalled();
+		expect(place).toHaveBeenCalledTimes(1);
+		// The same structure again (a keystroke in a title) does not ask twice.
+		layouter(must(setStepField(def, def.start, 'title', 'Typed')));
+		expect(place).toHaveBeenCalledTimes(1);
+		release();
+		await vi.waitFor(() => expect(onPlaced).toHaveBeenCalledTimes(1));
+		const tidy = layouter(def);
+		expect(tidy.provisional).toBeUndefined();
+		expect(tidy.nodes).toEqual(layoutFlow(def).nodes);
+		spy.mockRestore();
+	});
+
+	it('drops an answer for a structure that changed meanwhile', async () => {
+		const answers: (() => void)[] = [];
+		const place = (d: FlowDefinition) =>
+			new Promise<ReturnType<typeof placeFlow>>((r) => answers.push(() => r(placeFlow(d))));
+		const onPlaced = vi.fn();
+		const layouter = createLayouter({ place, syncLimit: 5, onPlaced });
+		layouter(def);
+		const added = must(addStep(def, 'verdict'));
+		expect(layouter(added).provisional).toBe(true);
+		answers[0](); // the answer for the old structure
+		await new Promise((r) => setTimeout(r, 0));
+		expect(onPlaced).not.toHaveBeenCalled();
+		expect(layouter(added).provisional).toBe(true);
+		answers[1]();
+		await vi.waitFor(() => expect(onPlaced).toHaveBeenCalledTimes(1));
+		expect(layouter(added).provisional).toBeUndefined();
+	});
+
+	it('keeps the patched positions when the placer fails', async () => {
+		const layouter = createLayouter({ place: () => Promise.reject(new Error('no worker')), syncLimit: 5 });
+		expect(layouter(def).provisional).toBe(true);
+		await new Promise((r) => setTimeout(r, 0));
+		const again = layouter(def);
+		expect(again.provisional).toBeUndefined();
+		expect(again.nodes).toHaveLength(Object.keys(def.steps).length);
 	});
 });

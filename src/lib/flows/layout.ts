@@ -43,6 +43,8 @@ export interface FlowLayout {
 	edges: LayoutEdge[];
 	width: number;
 	height: number;
+	/** True while the positions are patched and dagre's are still being computed elsewhere. */
+	provisional?: boolean;
 }
 
 export const NODE_SIZE: Record<NodeKind, { width: number; height: number }> = {
@@ -115,7 +117,17 @@ export interface Placement {
 
 const missingId = (e: Exit) => `missing:${e.source}:${e.index}`;
 
-/** The expensive part: dagre over steps, "missing" nodes and labelled exits. */
+/**
+ * The expensive part: dagre over steps, "missing" nodes and labelled exits. Its cost grows with the
+ * sum of the arrows' lengths in ranks (dagre threads a dummy node through every rank an arrow
+ * crosses, twice over because it keeps a rank free for labels): about 4 s for the 300-step bench
+ * flow, whose verdicts are reached from all along the flow. The editor runs it in a worker for big
+ * flows (see createLayouter).
+ */
+export function placeFlow(def: FlowDefinition): Placement {
+	return place(def, exitsOfFlow(def));
+}
+
 function place(def: FlowDefinition, exits: Exit[]): Placement {
 	const g = new dagre.graphlib.Graph({ multigraph: true });
 	g.setGraph({ rankdir: 'TB', nodesep: 36, ranksep: 56, edgesep: 12, marginx: 16, marginy: 16 });
@@ -197,19 +209,142 @@ export function layoutFlow(
 	return { nodes, edges, width: where.width, height: where.height };
 }
 
+/** The size of every node a definition draws: its steps and one "missing" node per dangling exit. */
+function nodeSizes(def: FlowDefinition, exits: Exit[]) {
+	const sizes = new Map<string, { width: number; height: number }>();
+	for (const [id, step] of Object.entries(def.steps)) sizes.set(id, NODE_SIZE[step.kind] ?? NODE_SIZE.test);
+	for (const e of exits) if (!Object.hasOwn(def.steps, e.next)) sizes.set(missingId(e), NODE_SIZE.missing);
+	return sizes;
+}
+
+const GAP_X = 36;
+const GAP_Y = 64;
+
 /**
- * A layout function for the editor that runs dagre only when the structure changed (steps added,
- * removed or renamed, kinds, exits); a keystroke in a title or body reuses the last positions.
+ * Positions for a changed structure without dagre, in time linear in the flow: every node that was
+ * placed before keeps its place (arrows are drawn between nodes by the graph component, so a
+ * re-pointed answer needs nothing new); a new node goes below the step that points to it (or above
+ * the step it points to, or below everything), moved right until it overlaps nothing. Good enough
+ * to keep drawing while dagre tidies up in the background.
  */
-export function createLayouter() {
+export function patchPlacement(prev: Placement, def: FlowDefinition): Placement {
+	const exits = exitsOfFlow(def);
+	const sizes = nodeSizes(def, exits);
+	const centres = new Map<string, { x: number; y: number }>();
+	const fresh: string[] = [];
+	for (const id of sizes.keys()) {
+		const c = prev.centres.get(id);
+		if (c) centres.set(id, c);
+		else fresh.push(id);
+	}
+	if (fresh.length === 0 && centres.size === prev.centres.size) return prev;
+	const from = new Map<string, string>();
+	const to = new Map<string, string>();
+	for (const e of exits) {
+		const target = Object.hasOwn(def.steps, e.next) ? e.next : missingId(e);
+		if (!from.has(target) && e.source !== target) from.set(target, e.source);
+		if (!to.has(e.source) && e.source !== target) to.set(e.source, target);
+	}
+	let bottom = 0;
+	for (const [id, c] of centres) bottom = Math.max(bottom, c.y + (sizes.get(id)?.height ?? 0) / 2);
+	const boxes = [...centres].map(([id, c]) => ({ ...c, ...sizes.get(id)! }));
+	const free = (x: number, y: number, w: number, h: number) =>
+		!boxes.some(
+			(b) =>
+				Math.abs(b.x - x) < (b.width + w) / 2 + GAP_X / 2 &&
+				Math.abs(b.y - y) < (b.height + h) / 2 + GAP_Y / 2
+		);
+	for (const id of fresh) {
+		const size = sizes.get(id)!;
+		const above = from.get(id);
+		const below = to.get(id);
+		let x: number, y: number;
+		const a = above && centres.get(above);
+		const b = below && centres.get(below);
+		if (a) [x, y] = [a.x, a.y + (sizes.get(above!)!.height + size.height) / 2 + GAP_Y];
+		else if (b) [x, y] = [b.x, b.y - (sizes.get(below!)!.height + size.height) / 2 - GAP_Y];
+		else [x, y] = [size.width / 2 + 16, bottom + GAP_Y + size.height / 2];
+		while (!free(x, y, size.width, size.height)) x += size.width + GAP_X;
+		centres.set(id, { x, y });
+		boxes.push({ x, y, ...size });
+		bottom = Math.max(bottom, y + size.height / 2);
+	}
+	let width = 0;
+	let height = 0;
+	for (const b of boxes) {
+		width = Math.max(width, b.x + b.width / 2 + 16);
+		height = Math.max(height, b.y + b.height / 2 + 16);
+	}
+	return { centres, width, height };
+}
+
+export interface LayouterOptions {
+	/**
+	 * Runs dagre elsewhere (the editor: a web worker). When given, a flow of more than `syncLimit`
+	 * steps is never laid out by dagre on the caller's thread: a structural change gets patched
+	 * positions at once (patchPlacement), and dagre's positions replace them when `place` answers.
+	 */
+	place?: (def: FlowDefinition) => Promise<Placement>;
+	/** Steps up to which dagre runs in place anyway (quick enough: under 40 ms for 30 steps, see bench/editor.bench.ts). */
+	syncLimit?: number;
+	/** Called when positions from `place` arrived; lay out again to draw them. */
+	onPlaced?: () => void;
+}
+
+/**
+ * A layout function for the editor. Dagre runs only when the structure changed (steps added,
+ * removed or renamed, kinds, exits); a keystroke in a title or body reuses the last positions.
+ * With `place`, a big flow's structural change is patched at once and tidied in the background.
+ */
+export function createLayouter(options: LayouterOptions = {}) {
+	const syncLimit = options.syncLimit ?? 30;
 	let key: string | null = null;
 	let placement: Placement | null = null;
+	let wanted: string | null = null;
+
+	function tidy(def: FlowDefinition, k: string) {
+		wanted = k;
+		options.place!(def).then(
+			(placed) => {
+				if (wanted !== k) return; // the structure changed again: a newer request is on its way
+				placement = placed;
+				key = k;
+				wanted = null;
+				options.onPlaced?.();
+			},
+			() => {
+				if (wanted !== k) return;
+				// No background layout to be had (no workers, or it failed): keep the patched positions.
+				key = k;
+				wanted = null;
+				options.onPlaced?.();
+			}
+		);
+	}
+
 	return (def: FlowDefinition, problems: FlowProblem[] = []): FlowLayout => {
 		const k = structureKey(def);
 		if (k !== key || !placement) {
-			placement = place(def, exitsOfFlow(def));
-			key = k;
+			const big = options.place && Object.keys(def.steps).length > syncLimit;
+			if (!big) {
+				placement = place(def, exitsOfFlow(def));
+				key = k;
+				wanted = null;
+			} else if (wanted !== k) {
+				placement = patchPlacement(placement ?? { centres: new Map(), width: 0, height: 0 }, def);
+				tidy(def, k);
+			}
 		}
-		return layoutFlow(def, problems, placement);
+		const out = layoutFlow(def, problems, placement!);
+		return wanted === null ? out : { ...out, provisional: true };
 	};
 }
+
+/** Structured-clone-safe form of a placement, for a worker's messages. */
+export type PlacementMessage = {
+	centres: [string, { x: number; y: number }][];
+	width: number;
+	height: number;
+};
+export const toMessage = (p: Placement): PlacementMessage => ({ ...p, centres: [...p.centres] });
+export const fromMessage = (m: PlacementMessage): Placement => ({ ...m, centres: new Map(m.centres) });
