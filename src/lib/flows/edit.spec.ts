@@ -18,51 +18,10 @@ import {
 	setStepField,
 	type EditResult
 } from './edit';
+import { tinyFlow } from './fixture';
 import { parseFlow } from './parse';
-import type { FlowDefinition } from './schema';
 
-/** A small flow that passes the check: look → (dry | wet → measure → verdicts). */
-function small(): FlowDefinition {
-	return {
-		id: 'tiny',
-		title: 'Tiny',
-		summary: 'For tests.',
-		symptoms: ['no-power'],
-		start: 'look',
-		steps: {
-			look: {
-				kind: 'symptom',
-				title: 'Look',
-				minutes: 1,
-				outcomes: [
-					{ label: 'Dry', next: 'fine' },
-					{ label: 'Wet', next: 'draw' }
-				]
-			},
-			draw: {
-				kind: 'measure',
-				title: 'Draw',
-				minutes: 2,
-				unit: 'A',
-				domain: { min: 0 },
-				ranges: [
-					{ max: 0.5, next: 'fine', label: 'Low' },
-					{ min: 0.5, next: 'short', label: 'High' }
-				]
-			},
-			fine: {
-				kind: 'verdict',
-				title: 'Fine',
-				verdict: { code: 'fine', severity: 'no-fault', repair: '-', risks: '-' }
-			},
-			short: {
-				kind: 'verdict',
-				title: 'Short',
-				verdict: { code: 'short', severity: 'board-level', repair: '-', risks: '-' }
-			}
-		}
-	};
-}
+const small = tinyFlow;
 
 /** Freezes deeply so that any mutation of the input throws in strict mode. */
 function frozen<T>(value: T): T {

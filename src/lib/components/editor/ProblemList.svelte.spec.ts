@@ -3,7 +3,7 @@ import userEvent from '@testing-library/user-event';
 import { describe, expect, it, vi } from 'vitest';
 import { checkFlow } from '$lib/flows/check';
 import { setExit } from '$lib/flows/edit';
-import { tinyFlow } from './fixture';
+import { tinyFlow } from '$lib/flows/fixture';
 import ProblemList from './ProblemList.svelte';
 
 describe('ProblemList', () => {

@@ -2,7 +2,7 @@ import { render, screen, within } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it } from 'vitest';
 import { FlowEditorState } from './editor.svelte';
-import { tinyFlow } from './fixture';
+import { tinyFlow } from '$lib/flows/fixture';
 import StepForm from './StepForm.svelte';
 
 function setup(stepId: string) {

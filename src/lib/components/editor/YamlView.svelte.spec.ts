@@ -2,7 +2,7 @@ import { fireEvent, render, screen } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it, vi } from 'vitest';
 import { toFlowYaml } from '$lib/flows/to-yaml';
-import { tinyFlow } from './fixture';
+import { tinyFlow } from '$lib/flows/fixture';
 import YamlView from './YamlView.svelte';
 
 function setup() {

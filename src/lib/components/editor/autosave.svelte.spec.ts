@@ -1,7 +1,7 @@
 import { describe, expect, it, vi } from 'vitest';
 import { setFlowField } from '$lib/flows/edit';
 import { Autosave, type SaveFn } from './autosave.svelte';
-import { tinyFlow } from './fixture';
+import { tinyFlow } from '$lib/flows/fixture';
 
 /** A fake server holding one draft with a revision, as the lifecycle queries do (409 on a stale one). */
 function server() {

@@ -1,6 +1,9 @@
-import type { FlowDefinition } from '$lib/flows/schema';
+import type { FlowDefinition } from './schema';
 
-/** A small flow that passes the check, for the editor's component tests. */
+/**
+ * A small flow that passes the check, shared by the tests of the edit operations and the editor's
+ * components: look → (dry | wet → measure → verdicts).
+ */
 export function tinyFlow(): FlowDefinition {
 	return {
 		id: 'tiny',
