@@ -5,7 +5,8 @@
  */
 import { assign, initialTransition, setup, transition, type SnapshotFrom } from 'xstate';
 import { rangeFor } from './ranges';
-import { exitsOf, type ChoiceStep, type FlowDefinition, type MeasureStep, type Step } from './schema';
+import { exitsOf } from './exits';
+import type { ChoiceStep, FlowDefinition, MeasureStep, Step } from './schema';
 
 export { rangeFor, describeRange, type RangeResult } from './ranges';
 

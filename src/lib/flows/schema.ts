@@ -131,9 +131,5 @@ export type Range = z.infer<typeof rangeSchema>;
 export type Domain = z.infer<typeof domainSchema>;
 export type Verdict = z.infer<typeof verdictSchema>;
 
-/** The steps a given step can lead to, in authored order (duplicates kept). */
-export function exitsOf(step: Step): string[] {
-	if (step.kind === 'verdict') return [];
-	if (step.kind === 'measure') return (step.ranges ?? []).map((r) => r.next);
-	return (step.outcomes ?? []).map((o) => o.next);
-}
+// In its own zod-free module so the run screen's machine ships without the validator.
+export { exitsOf } from './exits';

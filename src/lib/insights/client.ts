@@ -3,6 +3,8 @@
  * from the page URL. The same key is used by the prefetch in +page.ts and by createQuery.
  */
 import { filterKeys, filterQuery, insightFilters, type FilterValues } from './types';
+// Zod-free, so the run screen's "past runs" panel can use them without the filter schemas.
+export { intervalText, percent } from './format';
 import type {
 	AbandonedResponse,
 	AccuracyResponse,
@@ -62,13 +64,4 @@ export async function fetchInsight<E extends InsightEndpoint>(
 		throw new Error(body?.message ?? `The server answered ${res.status}.`);
 	}
 	return res.json();
-}
-
-/** 0.2307 → "23 %"; intervals keep one decimal when they are narrow. */
-export function percent(x: number, digits = 0) {
-	return `${(x * 100).toFixed(digits)} %`;
-}
-export function intervalText(lower: number, upper: number) {
-	const digits = upper - lower < 0.1 ? 1 : 0;
-	return `${(lower * 100).toFixed(digits)}–${(upper * 100).toFixed(digits)} %`;
 }

@@ -59,10 +59,24 @@ const ok = (seq: number, currentStep: string) =>
 
 afterEach(() => vi.unstubAllGlobals());
 
+const noHistory = { flowId: 'f', stepId: 'look', runs: 2, minimum: 5, verdicts: [], suggestion: null };
+
+/** Events go to `events`; the past-runs panel's history requests get `history`. */
+function stubFetch(
+	events: (url: string, init?: RequestInit) => Promise<Response>,
+	history: object = noHistory
+) {
+	vi.stubGlobal('fetch', (url: string, init?: RequestInit) =>
+		String(url).endsWith('/events')
+			? events(url, init)
+			: Promise.resolve(new Response(JSON.stringify(history), { status: 200 }))
+	);
+}
+
 describe('RunScreen', () => {
 	it('moves on at once and posts the event with a fresh idempotency key', async () => {
 		const fetchMock = vi.fn().mockResolvedValue(ok(1, 'check'));
-		vi.stubGlobal('fetch', fetchMock);
+		stubFetch(fetchMock);
 		render(RunScreen, { run: detail(), onresync: vi.fn() });
 		await fireEvent.keyDown(window, { key: '1' });
 		expect(screen.getByRole('heading', { level: 1 })).toHaveTextContent('Check the flex');
@@ -84,7 +98,7 @@ describe('RunScreen', () => {
 			.fn()
 			.mockRejectedValueOnce(new TypeError('Failed to fetch'))
 			.mockResolvedValueOnce(ok(1, 'check'));
-		vi.stubGlobal('fetch', fetchMock);
+		stubFetch(fetchMock);
 		render(RunScreen, { run: detail(), onresync: vi.fn() });
 		await fireEvent.keyDown(window, { key: '1' });
 		await waitFor(() =>
@@ -100,8 +114,7 @@ describe('RunScreen', () => {
 
 	it('reloads the server state on a 409', async () => {
 		const onresync = vi.fn();
-		vi.stubGlobal(
-			'fetch',
+		stubFetch(
 			vi
 				.fn()
 				.mockResolvedValue(
@@ -116,5 +129,27 @@ describe('RunScreen', () => {
 		await waitFor(() =>
 			expect(onresync).toHaveBeenCalledWith('This run has moved on. Showing where it stands now.')
 		);
+	});
+
+	it('shows the photos of the step with an upload, and past runs from this step once there are five', async () => {
+		stubFetch(vi.fn().mockResolvedValue(ok(1, 'check')), {
+			...noHistory,
+			runs: 12,
+			verdicts: [
+				{ verdictCode: 'ok', verdictTitle: 'No fault found', count: 9, share: 0.75, lower: 0.47, upper: 0.91 }
+			]
+		});
+		render(RunScreen, {
+			run: detail(),
+			user: { id: '22222222-2222-4222-8222-222222222222', role: 'technician' },
+			photos: [],
+			onresync: vi.fn()
+		});
+		expect(await screen.findByRole('heading', { name: 'Photos of this step' })).toBeInTheDocument();
+		expect(await screen.findByTestId('photo-camera-input')).toHaveAttribute('capture', 'environment');
+		const past = await screen.findByTestId('past-runs');
+		expect(past).toHaveTextContent('History, not advice');
+		expect(past).toHaveTextContent('No fault found');
+		expect(past).toHaveTextContent('9/12');
 	});
 });

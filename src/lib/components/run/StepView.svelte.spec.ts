@@ -1,8 +1,12 @@
 import { fireEvent, render, screen, within } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it, vi } from 'vitest';
-import type { MeasureStep, SymptomStep, TestStep, VerdictStep } from '$lib/flows/schema';
+import type { MeasureStep, Step, SymptomStep, TestStep, VerdictStep } from '$lib/flows/schema';
+import { renderStepsHtml } from '$lib/markdown/steps';
 import StepView from './StepView.svelte';
+
+/** The step's HTML as the run page's load renders and sanitises it. */
+const htmlOf = (step: Step) => renderStepsHtml({ steps: { s: step } } as never).s;
 
 // Steps quoted (shortened) from flows/restart-loop-after-liquid.flow.yaml.
 const symptom: SymptomStep = {
@@ -54,10 +58,8 @@ const verdict: VerdictStep = {
 
 describe('StepView: symptom and test steps', () => {
 	it('shows the title, sanitised body and one thumb-sized button per outcome with its key', () => {
-		render(StepView, {
-			stepId: 'power-on',
-			step: { ...symptom, body: symptom.body + '<img src=x onerror="alert(1)">' }
-		});
+		const step = { ...symptom, body: symptom.body + '<img src=x onerror="alert(1)">' };
+		render(StepView, { stepId: 'power-on', step, html: htmlOf(step) });
 		expect(screen.getByRole('heading', { level: 1 })).toHaveTextContent(symptom.title);
 		expect(screen.getByText('about two minutes').tagName).toBe('STRONG');
 		expect(document.querySelector('[onerror]')).toBeNull();
@@ -141,7 +143,13 @@ describe('StepView: measure step', () => {
 
 describe('StepView: verdict', () => {
 	it('shows the verdict, its severity in words, the repair checklist, parts, risks and cautions', () => {
-		render(StepView, { stepId: 'front-flex-fault', step: verdict, dataReachable: true });
+		render(StepView, {
+			stepId: 'front-flex-fault',
+			step: verdict,
+			html: htmlOf(verdict),
+			dataReachable: true,
+			checklistsHref: '/jobs/j1/checklists'
+		});
 		expect(screen.getByRole('heading', { level: 1 })).toHaveTextContent(
 			'Front sensor flex damaged by liquid'
 		);
@@ -159,5 +167,16 @@ describe('StepView: verdict', () => {
 		]);
 		expect(screen.getByText(/User data reachable/)).toBeInTheDocument();
 		expect(screen.queryByRole('list', { name: 'Outcomes' })).toBeNull();
+		expect(screen.getByRole('link', { name: /repair and function-test checklists/ })).toHaveAttribute(
+			'href',
+			'/jobs/j1/checklists'
+		);
+	});
+
+	it('without rendered HTML still shows the texts, as plain text', () => {
+		render(StepView, { stepId: 'front-flex-fault', step: verdict });
+		expect(screen.getByRole('region', { name: /Remaining risks/ })).toHaveTextContent('face unlock');
+		expect(screen.queryByRole('checkbox')).toBeNull();
+		expect(screen.queryByRole('link', { name: /checklists/ })).toBeNull();
 	});
 });
