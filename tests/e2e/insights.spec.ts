@@ -97,4 +97,19 @@ test('a technician gets the past runs from the step a new run stands on', async 
 	expect(history.runs).toBeGreaterThanOrEqual(5);
 	expect(history.verdicts.length).toBeGreaterThan(0);
 	for (const v of history.verdicts) expect(v.lower).toBeLessThanOrEqual(v.share);
+
+	// On the run screen itself, beside the step, marked as history rather than advice.
+	await page.goto(`/runs/${runId}`);
+	await expect(page.locator('[data-ready="true"]')).toBeVisible();
+	const past = page.getByTestId('past-runs');
+	await expect(past).toBeVisible();
+	await expect(past).toContainText('Past runs from this step ended in');
+	await expect(past).toContainText('History, not advice');
+	await expect(past).toContainText(history.verdicts[0].verdictTitle);
+	await expect(past).toContainText(`${history.verdicts[0].count}/${history.runs}`);
+	if (history.suggestion) {
+		const order = past.getByTestId('suggested-order');
+		await expect(order).toContainText(history.suggestion.order[0].title);
+		await expect(order).toContainText('check in this order');
+	}
 });
