@@ -168,6 +168,11 @@ test('report → mail → customer approves and pays → job paid and approved �
 	await expect(lead.locator('[data-section="quote"]').getByTestId('quote-paid')).toHaveText('€100.00');
 	await page.reload();
 	await expect(quote.getByTestId('quote-paid')).toHaveText('€100.00');
+	// The customer's page shows the refund, and the refunded amount is not asked for again.
+	await customer.reload();
+	await expect(customer.getByTestId('quote-refunded')).toHaveText('€29.00');
+	await expect(customer.getByTestId('quote-due')).toHaveText('€0.00');
+	await expect(customer.getByRole('button', { name: /Pay/ })).toHaveCount(0);
 
 	// Revoking the link closes it with the same plain page as a made-up one.
 	await side.getByRole('button', { name: 'Revoke' }).click();

@@ -214,11 +214,31 @@ export async function paidForJob(jobId: string, db?: DB | Tx): Promise<number> {
 	return paid;
 }
 
+/**
+ * Money received over the whole job, refunds not taken off: what counts against the quote's total
+ * (a refunded amount is given back, not owed again).
+ */
+export async function receivedForJob(jobId: string, db?: DB | Tx): Promise<number> {
+	const d = db ?? (await getDb());
+	const [{ received }] = await d
+		.select({ received: sql<number>`coalesce(sum(${payments.amountMinor}), 0)::int` })
+		.from(payments)
+		.where(
+			and(
+				eq(payments.referenceType, 'job'),
+				like(payments.referenceId, `${jobId}:%`),
+				inArray(payments.status, ['paid', 'refunded'])
+			)
+		);
+	return received;
+}
+
 export type PaymentOption = { kind: PaymentKind; amountMinor: number; label: string };
 
 /**
  * What the customer may pay now: the diagnostic fee (the fee lines with their tax) while nothing
- * is paid yet, and once the quote is approved, the rest of the quote's total.
+ * is paid yet, and once the quote is approved, the rest of the quote's total. `paidMinor` is the
+ * money received (`receivedForJob`).
  */
 export function paymentOptions(quote: Quote | null, paidMinor: number): PaymentOption[] {
 	if (!quote || quote.status === 'draft' || quote.status === 'superseded') return [];

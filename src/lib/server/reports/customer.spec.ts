@@ -252,6 +252,51 @@ describe('payment', () => {
 		await expect(startPayment(job.id, q.id, 'fee', '/r/tok')).rejects.toThrow(quotesQ.QuoteRuleError);
 	});
 
+	it('a confirmed refund takes its amount off what the job kept, but is not owed again', async () => {
+		const job = await newJob();
+		const q = await quotesQ.save(techId, job.id, { lines });
+		await sendReport(techId, job.id);
+		await quotesQ.decide(job.id, q.id, 'approved', 'Mara Quillon');
+		const checkout = await startPayment(job.id, q.id, 'rest', '/r/tok');
+		await confirm(checkout.sessionId);
+		const db = await getDb();
+		const [p] = await db.select().from(payments).where(eq(payments.providerSessionId, checkout.sessionId));
+		const payload = JSON.stringify({
+			id: `evt_${crypto.randomUUID()}`,
+			object: 'event',
+			type: 'refund.created',
+			created: Math.floor(Date.now() / 1000),
+			data: {
+				object: {
+					id: `re_${crypto.randomUUID().slice(0, 8)}`,
+					object: 'refund',
+					amount: 4000,
+					currency: 'eur',
+					status: 'succeeded',
+					metadata: { payment_id: p.id }
+				}
+			}
+		});
+		const header = new Stripe('sk_test_unused').webhooks.generateTestHeaderString({
+			payload,
+			secret: paymentsConfig()!.webhookSecret!
+		});
+		expect((await processWebhook(payload, header)).body.outcome).toBe('applied: refund');
+
+		// 169.00 paid − 40.00 refunded = 129.00 kept; nothing is due again.
+		const [after] = await db.select().from(quotes).where(eq(quotes.id, q.id));
+		expect(after.paidMinor).toBe(12900);
+		expect(await quotesQ.paidForJob(job.id)).toBe(12900);
+		expect(await quotesQ.receivedForJob(job.id)).toBe(16900);
+		expect(quotesQ.paymentOptions(after, await quotesQ.receivedForJob(job.id))).toEqual([]);
+		await expect(startPayment(job.id, q.id, 'rest', '/r/tok')).rejects.toThrow(/already paid in full/);
+		const r = await report.build(job.id, 'customer');
+		expect(r).toMatchObject({ paidMinor: 12900, refundedMinor: 4000 });
+		// No receipt for a refund: still the one receipt of the payment.
+		const receipts = (await mailsFor(job.id)).filter((m) => m.template === 'payment-receipt');
+		expect(receipts).toHaveLength(1);
+	});
+
 	it('the diagnostic fee can be paid before approval; then only the rest is due', async () => {
 		const job = await newJob();
 		const q = await quotesQ.save(techId, job.id, { lines });

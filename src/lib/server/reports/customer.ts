@@ -108,7 +108,7 @@ export async function startPayment(jobId: string, quoteId: string, kind: Payment
 			'not-open',
 			'This quote has changed since the page was opened. Reload the page.'
 		);
-	const paid = await quoteQueries.paidForJob(jobId);
+	const paid = await quoteQueries.receivedForJob(jobId);
 	const option = quoteQueries.paymentOptions(quote, paid).find((o) => o.kind === kind);
 	if (!option)
 		throw new QuoteRuleError(
@@ -205,7 +205,7 @@ export async function queueReadyToCollect(tx: Tx, job: Job) {
 	const customer = await customerOf(tx, job);
 	if (!customer?.email) return;
 	const quote = quoteQueries.customerVisible(await quoteQueries.listForJob(job.id, tx));
-	const paid = await quoteQueries.paidForJob(job.id, tx);
+	const paid = await quoteQueries.receivedForJob(job.id, tx);
 	const due = quote && quote.status === 'approved' ? Math.max(quote.grossMinor - paid, 0) : 0;
 	const mail = readyToCollect({
 		shop: await shopInfo(tx),

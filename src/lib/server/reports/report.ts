@@ -72,7 +72,10 @@ export type Report = {
 	quote: ReportQuote | null;
 	/** True when a newer draft is being prepared (customer cut: no price shown meanwhile). */
 	quoteRevising: boolean;
+	/** Money kept: received minus refunds. */
 	paidMinor: number;
+	/** Refunds given back; what is still to pay is the total minus paid and refunded. */
+	refundedMinor: number;
 	currency: string;
 	terms: string;
 };
@@ -111,12 +114,13 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 	const job = await jobQueries.get(jobId);
 	if (!job) return null;
 	const db = await getDb();
-	const [shop, money, settings, versions, paidMinor] = await Promise.all([
+	const [shop, money, settings, versions, paidMinor, receivedMinor] = await Promise.all([
 		getShop(),
 		getMoney(),
 		getReport(),
 		quoteQueries.listForJob(jobId),
-		quoteQueries.paidForJob(jobId)
+		quoteQueries.paidForJob(jobId),
+		quoteQueries.receivedForJob(jobId)
 	]);
 
 	const [run] = await db
@@ -187,6 +191,7 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 		quote: visible ? toReportQuote(visible) : null,
 		quoteRevising: audience === 'customer' && !visible && versions.length > 0,
 		paidMinor,
+		refundedMinor: receivedMinor - paidMinor,
 		currency: visible?.currency ?? money.currency,
 		terms: settings.terms
 	};

@@ -21,7 +21,7 @@ export const load: PageServerLoad = async (event) => {
 	const visible = quotes.customerVisible(await quotes.listForJob(link.jobId));
 	return {
 		report: r,
-		options: quotes.paymentOptions(visible, r.paidMinor),
+		options: quotes.paymentOptions(visible, r.paidMinor + r.refundedMinor),
 		returned: event.url.searchParams.has('paid')
 	};
 };
