@@ -13,6 +13,7 @@ import * as staff from '$lib/server/staff/queries';
 import { POST } from '../../../routes/api/payments/webhook/+server';
 import { actions } from '../../../routes/(app)/jobs/[id]/+page.server';
 import { onPaymentChange } from './changes';
+import { setFakePayments } from './config';
 import { createCheckout } from './checkout';
 import { RefundRuleError, requestRefund, settled } from './refunds';
 
@@ -305,6 +306,24 @@ describe('the job page’s refund action', () => {
 				event('technician', '00000000-0000-4000-8000-00000000000a', { paymentId: p.id, amount: '1' })
 			)
 		).rejects.toMatchObject({ status: 403 });
+		expect(await refundRows(p.id)).toHaveLength(0);
+	});
+
+	it('says so when payments are not set up, and records nothing', async () => {
+		const jobId = '00000000-0000-4000-8000-00000000000c';
+		const p = await paid(jobId, 1000);
+		setFakePayments(null);
+		try {
+			const r = (await actions.refund(event('lead', jobId, { paymentId: p.id, amount: '5' }))) as {
+				status: number;
+				data: Record<string, unknown>;
+			};
+			expect(r.status).toBe(503);
+			expect(r.data.message).toMatch(/^Payments are not set up/);
+		} finally {
+			const { secretKey, webhookSecret, host, port } = fake;
+			setFakePayments({ secretKey, webhookSecret, endpoint: { host, port, protocol: 'http' } });
+		}
 		expect(await refundRows(p.id)).toHaveLength(0);
 	});
 

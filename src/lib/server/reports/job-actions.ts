@@ -6,6 +6,7 @@ import { getMoney } from '$lib/server/settings/queries';
 import { parseAmount, parseLines, type RawLine } from '$lib/quotes/input';
 import { formatMoney } from '$lib/domain/money';
 import * as refunds from '$lib/server/payments/refunds';
+import { PaymentsNotConfiguredError } from '$lib/server/payments/config';
 import * as links from './links';
 import { ReportRuleError, sendReport as send } from './customer';
 
@@ -128,6 +129,7 @@ export async function refund(event: RequestEvent<{ id: string }>, user: User) {
 	} catch (e) {
 		if (e instanceof refunds.RefundRuleError)
 			return refused(e.code === 'not-found' ? 404 : e.code === 'service' ? 502 : 400, e.message);
+		if (e instanceof PaymentsNotConfiguredError) return refused(503, e.message);
 		throw e;
 	}
 }
