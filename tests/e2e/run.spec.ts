@@ -97,7 +97,8 @@ test('a technician runs the restart-loop flow from a job, with keys, buttons, Ba
 	await page.reload();
 	await expect(page.getByText('Verdict reached')).toBeVisible();
 	await expect(title(page)).toHaveText('A module other than the front sensor flex makes it restart');
-	await page.getByRole('link', { name: 'the job page' }).click();
+	await expect(page.getByRole('link', { name: /repair and function-test checklists/ })).toBeVisible();
+	await page.getByRole('link', { name: /^Job TM-\d{6}$/ }).click();
 	const runs = page.locator('[data-section="runs"]');
 	await expect(runs.getByText('module-fault')).toBeVisible();
 	await expect(runs.locator('[data-run-status="completed"]')).toBeVisible();
