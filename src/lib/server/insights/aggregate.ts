@@ -309,7 +309,7 @@ export const HISTORY_MINIMUM = 5;
 
 /**
  * "Past runs from this step ended in …": verdicts of the completed runs of `flowId` (any version)
- * that answered `stepId`. For a symptom step whose answers lead to different tests, also the order
+ * that answered `stepId`. For a symptom or test step whose answers lead to different tests, also the order
  * to check those tests in by p / cost (domain/ordering), p from how often past runs took each
  * answer and cost from the next step's minutes.
  */
@@ -362,12 +362,14 @@ function suggestOrder(
 ): StepHistory['suggestion'] {
 	const definition = labels.definition(flowId);
 	const step = definition?.steps[stepId];
-	if (!definition || !step || step.kind !== 'symptom' || answered < HISTORY_MINIMUM) return null;
-	// Outcomes that lead to the same next step are one candidate.
+	if (!definition || !step || (step.kind !== 'symptom' && step.kind !== 'test')) return null;
+	if (answered < HISTORY_MINIMUM) return null;
+	// Outcomes that lead to the same next step are one candidate; one that repeats this step (dry
+	// longer, try again) is not an alternative test.
 	const byNext = new Map<string, { p: number; outcomes: string[] }>();
 	(step.outcomes ?? []).forEach((o, i) => {
 		const next = definition.steps[o.next];
-		if (!next || (next.kind !== 'test' && next.kind !== 'measure')) return;
+		if (!next || o.next === stepId || (next.kind !== 'test' && next.kind !== 'measure')) return;
 		const c = byNext.get(o.next) ?? { p: 0, outcomes: [] };
 		c.p += (answers.get(i) ?? 0) / answered;
 		c.outcomes.push(o.label);

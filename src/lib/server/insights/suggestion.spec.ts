@@ -75,7 +75,7 @@ const facts: Fact[] = [0, 0, 0, 0, 1, 1, 1, 2, 2, 3].map((outcome, i) => ({
 	confirmedAt: null
 }));
 
-describe('suggested order at a symptom step', () => {
+describe('suggested order at a step that branches into tests', () => {
 	it('orders the tests by p / cost and reports the expected minutes of trade-reference §4', () => {
 		const h = stepHistory(facts, 'fixture-flow', 'first-look', labels);
 		expect(h.runs).toBe(10);
@@ -86,7 +86,46 @@ describe('suggested order at a symptom step', () => {
 		expect(h.suggestion!.reason).toMatch(/“Check D” first/);
 	});
 
-	it('offers no order for a test step, nor below five runs', () => {
+	it('orders the alternative tests a test step leads to, leaving out a repeat of the step itself', () => {
+		// "Isolation" (a test step): 6 of 10 runs went on to the 10-minute check, 3 to the 2-minute
+		// one, 1 repeated the step. p/c = .06 vs .15 per minute → the short check first.
+		const isolate = {
+			kind: 'test' as const,
+			title: 'Isolation',
+			minutes: 5,
+			outcomes: [
+				{ label: 'long', next: 'test-long' },
+				{ label: 'short', next: 'test-short' },
+				{ label: 'again', next: 'isolate' }
+			]
+		};
+		const def = {
+			...definition,
+			steps: {
+				...definition.steps,
+				isolate,
+				'test-long': test('Long check', 10),
+				'test-short': test('Short check', 2)
+			}
+		} as unknown as FlowDefinition;
+		const runs: Fact[] = [0, 0, 0, 0, 0, 0, 1, 1, 1, 2].map((outcome, i) => ({
+			...facts[i],
+			stepIds: ['isolate', ['test-long', 'test-short', 'isolate'][outcome]],
+			outcomes: [outcome, 0]
+		}));
+		const h = stepHistory(runs, 'fixture-flow', 'isolate', { ...labels, definition: () => def });
+		expect(h.suggestion!.order.map((c) => [c.stepId, c.p])).toEqual([
+			['test-short', 0.3],
+			['test-long', 0.6]
+		]);
+		// Kadane & Simon (1977), trade-reference §4: Σ cost_k · (1 − Σ_{j<k} p_j) = 2 + 10 · .7 = 9;
+		// likeliest (long) first: 10 + 2 · .4 = 10.8.
+		expect(h.suggestion!.expectedMinutes).toBe(9);
+		expect(h.suggestion!.likeliestFirstMinutes).toBe(10.8);
+		expect(h.suggestion!.reason).toMatch(/“Short check” first/);
+	});
+
+	it('offers no order for a step that leads to one test only, nor below five runs', () => {
 		expect(stepHistory(facts, 'fixture-flow', 'test-a', labels).suggestion).toBeNull();
 		expect(stepHistory(facts.slice(0, 4), 'fixture-flow', 'first-look', labels).suggestion).toBeNull();
 	});
