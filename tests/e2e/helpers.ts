@@ -14,4 +14,10 @@ export async function signIn(page: Page, who: keyof typeof accounts, next = '/')
 	await page.getByLabel('Password').fill(password);
 	await page.getByRole('button', { name: 'Sign in' }).click();
 	await expect(page).not.toHaveURL(/\/signin/);
+	await hydrated(page);
+}
+
+/** Waits until the page is hydrated (the root layout marks <html data-hydrated>). */
+export async function hydrated(page: Page) {
+	await expect(page.locator('html[data-hydrated="true"]')).toHaveCount(1);
 }

@@ -1,6 +1,6 @@
 import { expect, test } from '@playwright/test';
 import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
-import { signIn } from './helpers';
+import { hydrated, signIn } from './helpers';
 
 // The test server starts with 300 invented runs (TIDEMARK_DEMO_HISTORY in playwright.config.ts,
 // written by src/lib/server/insights/demo-history.ts over the shipped flows).
@@ -18,6 +18,7 @@ test('the lead reads verdict frequencies, filters by flow and date, reads an int
 	const table = page.getByTestId('verdict-table');
 	await expect(table.locator('tbody tr').first()).toBeVisible();
 
+	await hydrated(page);
 	await page.getByLabel('Flow').selectOption(FLOW);
 	await expect(page).toHaveURL(new RegExp(`flow=${FLOW}`));
 	await expect(table.locator('tbody tr').first()).toContainText(FLOW_TITLE);
@@ -42,6 +43,7 @@ test('the lead reads verdict frequencies, filters by flow and date, reads an int
 
 	// Reload keeps the filters (they live in the URL).
 	await page.reload();
+	await hydrated(page);
 	await expect(page.getByLabel('Flow')).toHaveValue(FLOW);
 	await expect(page.getByLabel('From')).toHaveValue(from);
 
@@ -112,4 +114,49 @@ test('a technician gets the past runs from the step a new run stands on', async 
 		await expect(order).toContainText(history.suggestion.order[0].title);
 		await expect(order).toContainText('check in this order');
 	}
+});
+
+test('at an isolation test the technician sees which follow-up test past runs make worth checking first, and why', async ({
+	page
+}) => {
+	// flows/restart-loop-after-liquid.flow.yaml: "Isolation test with the front sensor flex unplugged"
+	// leads to two different tests (a 6-minute diode reading, a 20-minute isolation of the others).
+	await signIn(page, 'tech');
+	const body = `0045${String(Date.now() % 1e10).padStart(10, '0')}`;
+	const job = await page.request.post('/api/jobs', {
+		data: {
+			customerName: 'Ines Larkspur',
+			customerEmail: 'ines@example.test',
+			maker: 'Corvana',
+			model: 'Tern 5',
+			imei: `${body}${imeiCheckDigit(body)}`,
+			symptoms: ['restart-loop'],
+			liquid: 'fresh',
+			submerged: false,
+			passcodeStatus: 'given',
+			consentToOpen: true
+		}
+	});
+	expect(job.status(), await job.text()).toBe(201);
+	const run = await page.request.post('/api/runs', {
+		data: { jobId: (await job.json()).id, flowId: 'restart-loop-after-liquid' }
+	});
+	const runId = (await run.json()).id as string;
+	const history = await (await page.request.get(`/api/runs/${runId}/history?step=isolate-front-flex`)).json();
+	expect(history.runs, 'demo history passes this step at least five times').toBeGreaterThanOrEqual(5);
+	expect(history.suggestion).not.toBeNull();
+
+	await page.goto(`/runs/${runId}`);
+	await expect(page.locator('[data-ready="true"]')).toBeVisible();
+	await page.keyboard.press('1'); // Restarts again and again
+	await page.getByRole('button', { name: /Battery looks normal and is disconnected/ }).click();
+	await page.getByRole('button', { name: /Corrosion or residue seen/ }).click();
+	await expect(page.getByRole('heading', { level: 1 })).toHaveText(
+		'Isolation test with the front sensor flex unplugged'
+	);
+	const order = page.getByTestId('past-runs').getByTestId('suggested-order');
+	await expect(order).toBeVisible();
+	await expect(order.getByRole('listitem').first()).toContainText(history.suggestion.order[0].title);
+	await expect(order).toContainText(`check “${history.suggestion.order[0].title}” first`);
+	await expect(order).toContainText('single-fault model');
 });
