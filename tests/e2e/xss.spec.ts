@@ -1,0 +1,120 @@
+import { expect, test, type Browser, type Page } from '@playwright/test';
+import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
+import { signIn, type accounts } from './helpers';
+import { PAYLOADS, xssFlow as payloadFlow } from './xss-flow';
+
+// A new id each time, so the spec can run again against the same server.
+const xssFlow = { ...payloadFlow, id: `xss-payloads-${Date.now().toString(36)}` };
+
+// Common XSS payloads in a step body, a summary and a verdict (tests/e2e/xss-flow.ts), rendered in
+// Chromium where flow markdown shows: the editor's preview, the read-only version and the run
+// screen. None may run: window.__xss is never set and no dialog opens, and the rendered markdown
+// holds no script, frame, event handler or javascript: link (the second check would catch a
+// broken sanitiser even where the CSP still blocks the script).
+
+type Seen = { dialogs: string[] };
+
+async function as(browser: Browser, who: keyof typeof accounts, seen: Seen) {
+	const page = await (await browser.newContext()).newPage();
+	page.on('dialog', async (d) => {
+		seen.dialogs.push(d.message());
+		await d.dismiss();
+	});
+	await signIn(page, who);
+	return page;
+}
+
+/** Every rendered markdown block on the page is inert, and nothing ran. */
+async function assertInert(page: Page, seen: Seen, where: string) {
+	const blocks = page.locator('.tm-markdown');
+	await expect(
+		page.locator('.tm-markdown:visible').filter({ hasText: 'Payloads below' }).first()
+	).toBeVisible();
+	const found = await blocks.evaluateAll((els) =>
+		els.flatMap((el) =>
+			[...el.querySelectorAll('*')].flatMap((n) => {
+				const bad: string[] = [];
+				if (['SCRIPT', 'IFRAME', 'OBJECT', 'EMBED', 'FRAME', 'STYLE'].includes(n.tagName.toUpperCase()))
+					bad.push(n.tagName);
+				for (const a of n.getAttributeNames())
+					if (a.startsWith('on') || a === 'srcdoc') bad.push(`${n.tagName}[${a}]`);
+				const href = n.getAttribute('href') ?? n.getAttribute('xlink:href') ?? '';
+				if (/^\s*javascript:/i.test(href)) bad.push(`${n.tagName}[href=${href}]`);
+				return bad;
+			})
+		)
+	);
+	expect(found, where).toEqual([]);
+	// Links that survive are clicked: a javascript: one would run now.
+	const links = blocks.locator('a');
+	for (let i = 0; i < (await links.count()); i++) {
+		const href = (await links.nth(i).getAttribute('href')) ?? '';
+		if (!href.startsWith('http')) await links.nth(i).click({ force: true, noWaitAfter: true });
+	}
+	await page.waitForTimeout(300);
+	expect(await page.evaluate(() => (window as unknown as { __xss?: unknown }).__xss), where).toBeUndefined();
+	expect(seen.dialogs, where).toEqual([]);
+}
+
+test('XSS payloads in flow markdown never run: editor preview, version view, run screen', async ({
+	browser
+}) => {
+	test.setTimeout(120_000);
+	const seen: Seen = { dialogs: [] };
+	const senior = await as(browser, 'senior', seen);
+	const created = await senior.request.post('/api/flows/drafts', { data: { definition: xssFlow } });
+	expect(created.status(), await created.text()).toBe(201);
+	const draft = (await created.json()) as { id: string };
+
+	// The editor: the start step's body in the live preview, and a payload typed afresh.
+	await senior.goto(`/flows/${xssFlow.id}/drafts/${draft.id}`);
+	const form = senior.locator('[data-step-form="look"]');
+	await expect(form.locator('[data-preview]')).toBeVisible();
+	await assertInert(senior, seen, 'editor preview');
+	// The form is server-rendered: type again until the hydrated editor's preview shows it.
+	await expect(async () => {
+		await form.getByLabel(/Instructions/).fill(PAYLOADS.join('\n\n') + '\n\nPayloads below, typed.');
+		await expect(form.locator('[data-preview]')).toContainText('Payloads below, typed.', { timeout: 1000 });
+	}).toPass();
+	await assertInert(senior, seen, 'editor preview after typing');
+
+	// Published, the same text shows read-only and on the run screen.
+	await expect(senior.locator('[data-save-status="saved"]')).toBeVisible();
+	expect((await senior.request.post(`/api/flows/drafts/${draft.id}/submit`)).status()).toBe(200);
+	const lead = await as(browser, 'lead', seen);
+	expect((await lead.request.post(`/api/flows/drafts/${draft.id}/approve`)).status()).toBe(200);
+
+	const tech = await as(browser, 'tech', seen);
+	await tech.goto(`/flows/${xssFlow.id}/v/1`);
+	await assertInert(tech, seen, 'version view');
+	await tech.goto(`/flows/${xssFlow.id}`);
+	await assertInert(tech, seen, 'flow page summary');
+
+	const body = '00660000000001';
+	const job = await tech.request.post('/api/jobs', {
+		data: {
+			customerName: 'Pim Ardent',
+			customerEmail: 'pim@example.test',
+			maker: 'Corvana',
+			model: 'Tern 6',
+			imei: `${body}${imeiCheckDigit(body)}`,
+			symptoms: ['no-power'],
+			liquid: 'fresh',
+			submerged: false,
+			passcodeStatus: 'given',
+			consentToOpen: true,
+			dataFirst: false
+		}
+	});
+	expect(job.status(), await job.text()).toBe(201);
+	const run = await tech.request.post('/api/runs', {
+		data: { jobId: (await job.json()).id, flowId: xssFlow.id }
+	});
+	expect(run.status(), await run.text()).toBe(201);
+	await tech.goto(`/runs/${(await run.json()).id}`);
+	await expect(tech.locator('[data-ready="true"]')).toBeVisible();
+	await assertInert(tech, seen, 'run screen step');
+	await tech.getByRole('button', { name: /Looked/ }).click();
+	await expect(tech.getByRole('heading', { level: 1 })).toHaveText('Payload verdict');
+	await assertInert(tech, seen, 'run screen verdict');
+});
