@@ -1,23 +1,20 @@
-import http from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import Stripe from 'stripe';
 import { getDb } from '$lib/server/db';
 import { auditLog } from '$lib/server/db/schema';
 import { paymentEvents, payments } from '$lib/server/db/schema/payments';
-import { runningFakes, startFakes, stopFakes } from '$lib/server/fakes';
 import type { FakePayments } from '$lib/server/fakes/payments';
 import { MAX_MINOR } from '$lib/domain/money';
-import { POST } from '../../../routes/api/payments/webhook/+server';
 import { createCheckout, PaymentRuleError } from './checkout';
 import { onPaymentChange } from './webhook';
+import { pay, postWebhook, signer, startWebhookHarness } from './fixtures';
 
 // End to end in node: the official SDK creates sessions at the local fake (started the way the app
 // starts it), the fake's checkout page is "clicked" over HTTP, and the fake posts its signed
 // webhook to a server in this test that hands the request to the real route handler.
 
-let app: http.Server;
+let harness: Awaited<ReturnType<typeof startWebhookHarness>>;
 let fake: FakePayments;
 
 async function row(id: string) {
@@ -31,30 +28,6 @@ async function eventCount() {
 	return (await db.select().from(paymentEvents)).length;
 }
 
-/** Posts a body with a given signature header straight to the route, as an attacker could. */
-async function postWebhook(payload: string, signature: string | null) {
-	const headers: Record<string, string> = { 'content-type': 'application/json' };
-	if (signature) headers['stripe-signature'] = signature;
-	const request = new Request('http://app.test/api/payments/webhook', {
-		method: 'POST',
-		body: payload,
-		headers
-	});
-	const res = await POST({ request } as Parameters<typeof POST>[0]);
-	return { status: res.status, body: await res.json() };
-}
-
-const signer = new Stripe('sk_test_unused');
-
-/** Clicks a button on the fake's checkout page. */
-async function pay(url: string, outcome: 'succeed' | 'decline' | 'cancel') {
-	const page = await fetch(url);
-	expect(page.status).toBe(200);
-	const html = await page.text();
-	expect(html).toContain(`value="${outcome}"`);
-	return fetch(url, { method: 'POST', body: new URLSearchParams({ outcome }), redirect: 'manual' });
-}
-
 const checkout = (ref: string, amountMinor = 4950) =>
 	createCheckout({
 		amountMinor,
@@ -66,28 +39,11 @@ const checkout = (ref: string, amountMinor = 4950) =>
 	});
 
 beforeAll(async () => {
-	app = http.createServer(async (req, res) => {
-		const chunks: Buffer[] = [];
-		for await (const c of req) chunks.push(c as Buffer);
-		const { status, body } = await postWebhook(
-			Buffer.concat(chunks).toString('utf8'),
-			(req.headers['stripe-signature'] as string) ?? null
-		);
-		res.writeHead(status, { 'content-type': 'application/json' }).end(JSON.stringify(body));
-	});
-	await new Promise<void>((r) => app.listen(0, '127.0.0.1', () => r()));
-	process.env.PUBLIC_BASE_URL = `http://127.0.0.1:${(app.address() as AddressInfo).port}`;
-	process.env.TIDEMARK_FAKES = '1';
-	delete process.env.STRIPE_SECRET_KEY;
-	delete process.env.SMTP_URL;
-	await startFakes();
-	fake = runningFakes().payments!;
+	harness = await startWebhookHarness();
+	fake = harness.fake;
 });
 
-afterAll(async () => {
-	await stopFakes();
-	await new Promise((r) => app?.close(r));
-});
+afterAll(() => harness?.stop());
 
 describe('checkout through the SDK and the local fake', () => {
 	it('creates a pending payment and a session whose page shows the amount', async () => {

@@ -1,43 +1,27 @@
 import crypto from 'node:crypto';
-import http from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
-import Stripe from 'stripe';
 import { getDb } from '$lib/server/db';
 import { auditLog } from '$lib/server/db/schema';
 import { paymentRefunds, payments } from '$lib/server/db/schema/payments';
-import { runningFakes, startFakes, stopFakes } from '$lib/server/fakes';
 import type { FakePayments } from '$lib/server/fakes/payments';
 import * as staff from '$lib/server/staff/queries';
-import { POST } from '../../../routes/api/payments/webhook/+server';
 import { actions } from '../../../routes/(app)/jobs/[id]/+page.server';
 import { onPaymentChange } from './changes';
 import { setFakePayments } from './config';
 import { createCheckout } from './checkout';
 import { RefundRuleError, requestRefund, settled } from './refunds';
+import { pay, postWebhook, signer, startWebhookHarness } from './fixtures';
 
 // Refunds end to end in node: a payment is paid on the local fake's checkout page, a lead's refund
 // is created through the official SDK at the fake, and the fake posts its signed `refund.created`
 // and `charge.refunded` events to a server here that hands them to the real webhook route.
 
-let app: http.Server;
+let harness: Awaited<ReturnType<typeof startWebhookHarness>>;
 let fake: FakePayments;
 let leadId: string;
 let techId: string;
-const signer = new Stripe('sk_test_unused');
 
-async function postWebhook(payload: string, signature: string | null) {
-	const headers: Record<string, string> = { 'content-type': 'application/json' };
-	if (signature) headers['stripe-signature'] = signature;
-	const request = new Request('http://app.test/api/payments/webhook', {
-		method: 'POST',
-		body: payload,
-		headers
-	});
-	const res = await POST({ request } as Parameters<typeof POST>[0]);
-	return { status: res.status, body: await res.json() };
-}
 const sign = (payload: string, secret = fake.webhookSecret) =>
 	signer.webhooks.generateTestHeaderString({ payload, secret });
 
@@ -65,7 +49,7 @@ async function paid(job: string, amountMinor = 12000) {
 		successUrl: 'http://app.test/r/tok?paid=1',
 		cancelUrl: 'http://app.test/r/tok'
 	});
-	await fetch(url, { method: 'POST', body: new URLSearchParams({ outcome: 'succeed' }), redirect: 'manual' });
+	await pay(url, 'succeed');
 	const p = await payment(paymentId);
 	expect(p.status).toBe('paid');
 	expect(p.providerPaymentIntent).toMatch(/^pi_test_/);
@@ -98,20 +82,8 @@ function refundEvent(p: { providerPaymentIntent: string | null }, amount: number
 }
 
 beforeAll(async () => {
-	app = http.createServer(async (req, res) => {
-		const chunks: Buffer[] = [];
-		for await (const c of req) chunks.push(c as Buffer);
-		const sig = (req.headers['stripe-signature'] as string) ?? null;
-		const { status, body } = await postWebhook(Buffer.concat(chunks).toString('utf8'), sig);
-		res.writeHead(status, { 'content-type': 'application/json' }).end(JSON.stringify(body));
-	});
-	await new Promise<void>((r) => app.listen(0, '127.0.0.1', () => r()));
-	process.env.PUBLIC_BASE_URL = `http://127.0.0.1:${(app.address() as AddressInfo).port}`;
-	process.env.TIDEMARK_FAKES = '1';
-	delete process.env.STRIPE_SECRET_KEY;
-	delete process.env.SMTP_URL;
-	await startFakes();
-	fake = runningFakes().payments!;
+	harness = await startWebhookHarness();
+	fake = harness.fake;
 	const person = (role: 'lead' | 'technician') =>
 		staff.create(null, {
 			name: role === 'lead' ? 'Ines Harrow' : 'Tomas Reyl',
@@ -123,10 +95,7 @@ beforeAll(async () => {
 	techId = (await person('technician')).id;
 });
 
-afterAll(async () => {
-	await stopFakes();
-	await new Promise((r) => app?.close(r));
-});
+afterAll(() => harness?.stop());
 
 describe('refunds through the SDK, the local fake and the signed webhook', () => {
 	it('refunds part, then the rest: each confirmed by its webhook, audited, amounts in minor units', async () => {
