@@ -115,7 +115,7 @@ try {
 	const runCount = await count('insight_run_facts');
 	const stepCount = await count('run_steps');
 	console.log(
-		`${label} (${(await getHandle()).kind}): ${runCount.toLocaleString('en')} finished runs, ${stepCount.toLocaleString('en')} run steps`
+		`${label} (${(await getHandle()).kind}): ${runCount.toLocaleString('en')} finished runs, ${stepCount.toLocaleString('en')} run steps (${(stepCount / runCount).toFixed(2)} per run; the issue's size is 100,000 runs / 800,000 steps)`
 	);
 
 	// The process's copy: filled once (in the server, in the background at start-up).

@@ -1,9 +1,11 @@
 /**
  * Invented history for the demo shop, so the insights have something to show: a year of runs over
  * the published flows, walked through each flow's compiled machine with random answers (so every
- * path is one the flow allows), with seasonality (more phones in wet weeks), durations from the
- * steps' minutes, some abandoned runs and some overturned verdicts. Every person, customer and
- * device here is made up. Not for a real shop's database.
+ * path is one the flow allows) and stored event by event as the run screen stores them: BACKs that
+ * revise an answer or re-take a reading, "dry longer" repeats, about 8 rows per run. With
+ * seasonality (more phones in wet weeks), durations from the steps' minutes, some abandoned runs
+ * and some overturned verdicts. Every person, customer and device here is made up. Not for a real
+ * shop's database.
  */
 import { inArray, sql } from 'drizzle-orm';
 import { getDb, type DB } from '$lib/server/db';
@@ -124,11 +126,20 @@ function weekWeights(weeks: number, rng: Rng, end: number) {
 	});
 }
 
-type Walk = {
+/** One stored event of a walk: an answer, a reading or a BACK (which revises an earlier row). */
+type WalkRow = {
+	stepId: string;
+	kind: string;
+	answer: StepAnswer;
+	seconds: number;
+	/** For a BACK: the index of the row it revises (that row is superseded when the BACK is written). */
+	revises?: number;
+	/** The step the run stands at after this event. */
+	after: string;
 	snapshot: FlowSnapshot;
-	done: boolean;
-	steps: { stepId: string; kind: string; answer: StepAnswer; seconds: number }[];
 };
+
+type Walk = { snapshot: FlowSnapshot; done: boolean; rows: WalkRow[] };
 
 /** A value inside a measure step's range `index` (ranges are [min, max)). */
 function readingIn(step: MeasureStep, index: number, rng: Rng) {
@@ -139,41 +150,98 @@ function readingIn(step: MeasureStep, index: number, rng: Rng) {
 	return Number(v.toPrecision(3));
 }
 
-/** One random walk through the machine; answers that lead back to an earlier step are rarer. */
+/**
+ * How often a technician goes BACK to revise the answer before (invented rates): a reading is
+ * re-taken more often than a test is redone (probe slipped, meter on the wrong range). At most
+ * `MAX_REVISIONS` per run, never two BACKs in a row.
+ */
+const REVISION_RATE = { measure: 0.5, choice: 0.25 } as const;
+const MAX_REVISIONS = 4;
+/** Share of revisions that end with the same answer (the re-check agrees with the first look). */
+const SAME_AGAIN = 0.5;
+
+/**
+ * One random walk through the machine, event by event, as a technician would send them: answers,
+ * readings and BACKs, so the stored rows are what the run screen would have written. Answers that
+ * lead back to an earlier step ("dry longer", re-measure after drying) come up less often each
+ * time round, and early verdicts are rarer than late ones (most phones need a few tests).
+ */
 function walk(def: FlowDefinition, machine: FlowMachine, rng: Rng, speed: number, bias: number[]): Walk {
 	let [snapshot] = initialTransition(machine);
-	const steps: Walk['steps'] = [];
-	const seen = new Set<string>();
-	// Loops back are rare, and early verdicts rarer than late ones (most phones need a few tests).
-	const weightOf = (next: string, i: number) =>
-		seen.has(next)
-			? 0.15
-			: (def.steps[next]?.kind === 'verdict' && steps.length < 5 ? 0.12 : 1) * (1 + (bias[i] ?? 0));
-	for (let guard = 0; guard < 40 && snapshot.status === 'active'; guard++) {
+	const rows: WalkRow[] = [];
+	/** Indices of the answers still standing (a BACK pops the newest). */
+	const standing: number[] = [];
+	const visits = new Map<string, number>();
+	let revisions = 0;
+	/** The row a BACK just revised: the step is being answered again. */
+	let revisiting: WalkRow | null = null;
+	const weightOf = (id: string, next: string, i: number) => {
+		const been = visits.get(next) ?? 0;
+		if (been > 0) return (next === id ? 1.3 : 0.6) / been;
+		return (def.steps[next]?.kind === 'verdict' && standing.length < 5 ? 0.1 : 1) * (1 + (bias[i] ?? 0));
+	};
+	const minutes = (m: number | undefined) => Math.max(0.5, m ?? 1) * 60 * speed;
+	for (let guard = 0; guard < 80 && snapshot.status === 'active'; guard++) {
 		const id = String(snapshot.value);
 		const step = def.steps[id];
-		seen.add(id);
-		const seconds = Math.round(Math.max(0.5, step.minutes ?? 1) * 60 * speed * spread(rng, 0.45));
+		const last = standing.length ? rows[standing[standing.length - 1]] : null;
+		if (
+			last &&
+			!revisiting &&
+			revisions < MAX_REVISIONS &&
+			rng() < (last.kind === 'measure' ? REVISION_RATE.measure : REVISION_RATE.choice)
+		) {
+			const back = applyEvent(machine, snapshot, { type: 'BACK' });
+			if (back.accepted) {
+				const revises = standing.pop()!;
+				snapshot = back.snapshot;
+				// A short look at this step before going back (seconds, not the step's minutes).
+				rows.push({
+					stepId: id,
+					kind: 'back',
+					answer: { back: { revised: revises + 1 } },
+					seconds: Math.round(15 + rng() * 75),
+					revises,
+					after: String(snapshot.value),
+					snapshot
+				});
+				revisions++;
+				revisiting = rows[revises];
+				continue;
+			}
+		}
+		visits.set(id, (visits.get(id) ?? 0) + (revisiting ? 0 : 1));
+		// A second look at a step is quicker than the first.
+		const seconds = Math.round(minutes(step.minutes) * (revisiting ? 0.45 : 1) * spread(rng, 0.45));
+		const again = revisiting && rng() < SAME_AGAIN ? revisiting.answer : null;
 		let event;
 		let answer: StepAnswer;
 		if (step.kind === 'measure') {
 			const ranges = step.ranges ?? [];
-			const r = ranges.indexOf(weighted(rng, ranges, (x, i) => weightOf(x.next, i)));
+			const r =
+				again && 'range' in again
+					? again.range.index
+					: ranges.indexOf(weighted(rng, ranges, (x, i) => weightOf(id, x.next, i)));
 			const value = readingIn(step, r, rng);
 			event = { type: 'MEASURE' as const, value };
 			answer = { value, unit: step.unit, range: { index: r, label: ranges[r].label ?? null } };
 		} else if (step.kind === 'symptom' || step.kind === 'test') {
 			const outcomes = step.outcomes ?? [];
-			const o = outcomes.indexOf(weighted(rng, outcomes, (x, i) => weightOf(x.next, i)));
+			const o =
+				again && 'outcome' in again
+					? again.outcome.index
+					: outcomes.indexOf(weighted(rng, outcomes, (x, i) => weightOf(id, x.next, i)));
 			event = { type: 'ANSWER' as const, outcome: o };
 			answer = { outcome: { index: o, label: outcomes[o].label } };
 		} else break;
 		const next = applyEvent(machine, snapshot, event);
 		if (!next.accepted) break;
-		steps.push({ stepId: id, kind: step.kind, answer, seconds });
 		snapshot = next.snapshot;
+		standing.push(rows.length);
+		rows.push({ stepId: id, kind: step.kind, answer, seconds, after: String(snapshot.value), snapshot });
+		revisiting = null;
 	}
-	return { snapshot, done: snapshot.status === 'done', steps };
+	return { snapshot, done: snapshot.status === 'done', rows };
 }
 
 export type HistoryOptions = {
@@ -258,7 +326,7 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 			const w = walk(version.def, version.machine, rng, speeds.get(tech)!, bias.get(flowId)!);
 			const abandon = !w.done || rng() < 0.05;
 			// An abandoned run stops somewhere along its path.
-			const kept = abandon ? w.steps.slice(0, Math.floor(rng() * w.steps.length)) : w.steps;
+			const kept = abandon ? w.rows.slice(0, Math.floor(rng() * w.rows.length)) : w.rows;
 			return { startedAt, version, tech, model, walk: w, abandon, kept };
 		});
 
@@ -324,10 +392,13 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 							flowVersionId: p.version.id,
 							technicianId: p.tech,
 							status: p.abandon ? ('abandoned' as const) : ('completed' as const),
-							snapshot: p.version.machine.getPersistedSnapshot(p.walk.snapshot) as Record<string, unknown>,
-							currentStep: p.abandon
-								? (p.walk.steps[p.kept.length]?.stepId ?? p.version.def.start)
-								: verdictStep!,
+							// An abandoned run keeps the state it stood in when it was stopped.
+							snapshot: p.version.machine.getPersistedSnapshot(
+								p.abandon
+									? (p.kept.at(-1)?.snapshot ?? initialTransition(p.version.machine)[0])
+									: p.walk.snapshot
+							) as Record<string, unknown>,
+							currentStep: p.abandon ? (p.kept.at(-1)?.after ?? p.version.def.start) : verdictStep!,
 							verdictCode: verdictDef?.kind === 'verdict' ? verdictDef.verdict.code : null,
 							verdictStep,
 							abandonReason: p.abandon ? pick(rng, abandonReasons) : null,
@@ -344,24 +415,29 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 					finishedAt: runs.finishedAt
 				});
 
+			// As the run screen writes them: each row entered when the one before was answered, and a
+			// BACK supersedes the answer it revises at the moment it is written.
 			const stepRows = plan.flatMap((p, i) => {
+				const answered: number[] = [];
 				let t = p.startedAt;
-				return p.kept.map((s, k) => {
-					const enteredAt = new Date(t);
-					t += s.seconds * 1000;
-					return {
-						runId: runRows[i].id,
-						seq: k + 1,
-						stepId: s.stepId,
-						kind: s.kind,
-						answer: s.answer,
-						actorId: p.tech,
-						enteredAt,
-						answeredAt: new Date(t),
-						idempotencyKey: `demo-history-${k + 1}`,
-						result: { seq: k + 1, demo: true }
-					};
+				for (const s of p.kept) answered.push((t += s.seconds * 1000));
+				const supersededAt = new Map<number, Date>();
+				p.kept.forEach((s, k) => {
+					if (s.revises !== undefined) supersededAt.set(s.revises, new Date(answered[k]));
 				});
+				return p.kept.map((s, k) => ({
+					runId: runRows[i].id,
+					seq: k + 1,
+					stepId: s.stepId,
+					kind: s.kind,
+					answer: s.answer,
+					actorId: p.tech,
+					enteredAt: new Date(k === 0 ? p.startedAt : answered[k - 1]),
+					answeredAt: new Date(answered[k]),
+					supersededAt: supersededAt.get(k) ?? null,
+					idempotencyKey: `demo-history-${k + 1}`,
+					result: { seq: k + 1, demo: true }
+				}));
 			});
 			for (let k = 0; k < stepRows.length; k += 2000)
 				await tx.insert(runSteps).values(stepRows.slice(k, k + 2000));
