@@ -6,7 +6,7 @@ import { eq } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { flows, flowVersions } from '$lib/server/db/schema';
 import { toFlowYaml } from '$lib/flows/to-yaml';
-import * as staff from '$lib/server/staff/queries';
+import { person } from '$lib/server/staff/fixtures';
 import * as library from './queries';
 import * as authoring from './authoring';
 import { exportVersion } from './export';
@@ -20,20 +20,8 @@ let ana: Actor, tom: Actor;
 beforeAll(async () => {
 	vi.spyOn(console, 'log').mockImplementation(() => {});
 	await library.importFromFiles('flows');
-	const a = await staff.create(null, {
-		name: 'Ana',
-		email: 'ana@io.test',
-		role: 'senior',
-		password: 'ana-password-1'
-	});
-	const t = await staff.create(null, {
-		name: 'Tom',
-		email: 'tom@io.test',
-		role: 'technician',
-		password: 'tom-password-1'
-	});
-	ana = { id: a.id, role: 'senior' };
-	tom = { id: t.id, role: 'technician' };
+	ana = await person('Ana', 'senior', 'io.test');
+	tom = await person('Tom', 'technician', 'io.test');
 });
 afterAll(() => fs.rmSync(out, { recursive: true, force: true }));
 

@@ -1,14 +1,13 @@
 import { beforeAll, describe, expect, it, vi } from 'vitest';
-import * as staff from '$lib/server/staff/queries';
+import { person, type TestPerson } from '$lib/server/staff/fixtures';
 import * as library from '$lib/server/flows/queries';
 import { actions, load } from './+page.server';
 
 // Real in-memory PGlite with the shipped flows imported as at start-up.
 const FLOW = 'no-sound-after-liquid';
-type User = { id: string; role: 'technician' | 'senior' | 'lead' };
-let senior: User, tech: User;
+let senior: TestPerson, tech: TestPerson;
 
-function event(user: User, query = '', method = 'GET') {
+function event(user: TestPerson, query = '', method = 'GET') {
 	const url = new URL(`http://shop.test/flows/${FLOW}/drafts/new${query}`);
 	const request = new Request(url, method === 'POST' ? { method, body: new FormData() } : {});
 	const route = { id: '/(app)/flows/[id]/drafts/new' };
@@ -19,20 +18,8 @@ function event(user: User, query = '', method = 'GET') {
 beforeAll(async () => {
 	vi.spyOn(console, 'log').mockImplementation(() => {});
 	await library.importFromFiles('flows');
-	const s = await staff.create(null, {
-		name: 'Sela',
-		email: 'sela@new.test',
-		role: 'senior',
-		password: 'sela-password-1'
-	});
-	const t = await staff.create(null, {
-		name: 'Timo',
-		email: 'timo@new.test',
-		role: 'technician',
-		password: 'timo-password-1'
-	});
-	senior = { id: s.id, role: 'senior' };
-	tech = { id: t.id, role: 'technician' };
+	senior = await person('Sela', 'senior', 'new.test');
+	tech = await person('Timo', 'technician', 'new.test');
 });
 
 describe('start a draft', () => {
