@@ -3,7 +3,7 @@
  * approve and decline by the customer, and what is still to pay. Totals always come from
  * quoteTotals() in $lib/domain/money with the tax settings copied onto the version.
  */
-import { and, desc, eq, inArray, like, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, like, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb, type DB, type Tx } from '$lib/server/db';
 import { quotes, type Quote } from '$lib/server/db/schema/quotes';
@@ -186,51 +186,37 @@ export function parsePaymentReference(ref: string) {
 	return m ? { jobId: m[1], quoteId: m[2], kind: m[3] as PaymentKind } : null;
 }
 
+/** Every payment of the job, whichever quote version it was for. */
+const ofJob = (jobId: string) =>
+	and(eq(payments.referenceType, 'job'), like(payments.referenceId, `${jobId}:%`));
+
 /** The job's payments (every quote version), newest first. */
 export async function paymentsForJob(jobId: string, db?: DB | Tx) {
 	const d = db ?? (await getDb());
-	return d
-		.select()
+	return d.select().from(payments).where(ofJob(jobId)).orderBy(desc(payments.createdAt));
+}
+
+/** Σ `amount` over the job's confirmed payments (paid, or paid and then refunded). */
+async function sumConfirmed(jobId: string, amount: SQL, db?: DB | Tx): Promise<number> {
+	const d = db ?? (await getDb());
+	const [{ total }] = await d
+		.select({ total: sql<number>`coalesce(sum(${amount}), 0)::int` })
 		.from(payments)
-		.where(and(eq(payments.referenceType, 'job'), like(payments.referenceId, `${jobId}:%`)))
-		.orderBy(desc(payments.createdAt));
+		.where(and(ofJob(jobId), inArray(payments.status, ['paid', 'refunded'])));
+	return total;
 }
 
 /** Confirmed money in, minus confirmed refunds, over the whole job. */
-export async function paidForJob(jobId: string, db?: DB | Tx): Promise<number> {
-	const d = db ?? (await getDb());
-	const [{ paid }] = await d
-		.select({
-			paid: sql<number>`coalesce(sum(${payments.amountMinor} - ${payments.refundedMinor}), 0)::int`
-		})
-		.from(payments)
-		.where(
-			and(
-				eq(payments.referenceType, 'job'),
-				like(payments.referenceId, `${jobId}:%`),
-				inArray(payments.status, ['paid', 'refunded'])
-			)
-		);
-	return paid;
+export function paidForJob(jobId: string, db?: DB | Tx): Promise<number> {
+	return sumConfirmed(jobId, sql`${payments.amountMinor} - ${payments.refundedMinor}`, db);
 }
 
 /**
  * Money received over the whole job, refunds not taken off: what counts against the quote's total
  * (a refunded amount is given back, not owed again).
  */
-export async function receivedForJob(jobId: string, db?: DB | Tx): Promise<number> {
-	const d = db ?? (await getDb());
-	const [{ received }] = await d
-		.select({ received: sql<number>`coalesce(sum(${payments.amountMinor}), 0)::int` })
-		.from(payments)
-		.where(
-			and(
-				eq(payments.referenceType, 'job'),
-				like(payments.referenceId, `${jobId}:%`),
-				inArray(payments.status, ['paid', 'refunded'])
-			)
-		);
-	return received;
+export function receivedForJob(jobId: string, db?: DB | Tx): Promise<number> {
+	return sumConfirmed(jobId, sql`${payments.amountMinor}`, db);
 }
 
 export type PaymentOption = { kind: PaymentKind; amountMinor: number; label: string };
