@@ -398,7 +398,7 @@ function suggestOrder(
 		expectedMinutes: Math.round(best * 10) / 10,
 		likeliestFirstMinutes: Math.round(naive * 10) / 10,
 		reason:
-			`If you cannot tell which answer fits, check “${first.title}” first: past runs make it the best ` +
+			`Check “${first.title}” first because past runs make it the best ` +
 			`chance per minute (${Math.round(first.p * 100)} % in ${first.cost} min). Checking in decreasing ` +
 			`chance per minute averages ${Math.round(best * 10) / 10} min, against ` +
 			`${Math.round(naive * 10) / 10} min likeliest first (single-fault model, every candidate checked).`
