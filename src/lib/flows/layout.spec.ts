@@ -88,6 +88,21 @@ describe('layoutFlow', () => {
 		});
 	});
 
+	it('numbers the answers of one step that lead to the same step, so their labels can take turns', () => {
+		const twice = must(
+			setExit(def, def.start, 1, {
+				next: layout.edges.find((e) => e.source === def.start && e.index === 0)!.target
+			})
+		);
+		const edges = layoutFlow(twice).edges.filter((e) => e.source === def.start);
+		expect(edges.slice(0, 2).map((e) => [e.slot, e.slots])).toEqual([
+			[0, 2],
+			[1, 2]
+		]);
+		for (const e of layout.edges.filter((x) => x.source !== def.start))
+			expect(e.slots).toBeGreaterThanOrEqual(1);
+	});
+
 	it('shortens long labels for the drawing and keeps the full text', () => {
 		const long = must(
 			setExit(def, def.start, 0, { label: 'Stays dark with no response to buttons, charger or anything' })

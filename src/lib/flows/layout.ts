@@ -36,6 +36,9 @@ export interface LayoutEdge {
 	/** Position of the answer or range in its step. */
 	index: number;
 	dangling: boolean;
+	/** Answers of one step leading to the same step share a path: this one's place among them. */
+	slot: number;
+	slots: number;
 }
 
 export interface FlowLayout {
@@ -183,6 +186,13 @@ export function layoutFlow(
 			problems: m?.count ?? 0
 		});
 	}
+	const targetOf = (e: Exit) => (Object.hasOwn(def.steps, e.next) ? e.next : missingId(e));
+	const shared = new Map<string, number>();
+	for (const e of exits) {
+		const pair = `${e.source}>${targetOf(e)}`;
+		shared.set(pair, (shared.get(pair) ?? 0) + 1);
+	}
+	const taken = new Map<string, number>();
 	const edges: LayoutEdge[] = exits.map((e) => {
 		const dangling = !Object.hasOwn(def.steps, e.next);
 		const target = dangling ? missingId(e) : e.next;
@@ -196,6 +206,8 @@ export function layoutFlow(
 				problems: 0
 			});
 		const id = `${e.source}:${e.index}`;
+		const pair = `${e.source}>${target}`;
+		taken.set(pair, (taken.get(pair) ?? -1) + 1);
 		return {
 			id,
 			source: e.source,
@@ -203,7 +215,9 @@ export function layoutFlow(
 			label: shorten(e.label),
 			fullLabel: e.label,
 			index: e.index,
-			dangling
+			dangling,
+			slot: taken.get(pair) ?? 0,
+			slots: shared.get(pair) ?? 1
 		};
 	});
 	return { nodes, edges, width: where.width, height: where.height };
