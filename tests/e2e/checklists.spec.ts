@@ -1,7 +1,6 @@
 import { expect, test, type Locator, type Page } from '@playwright/test';
 import sharp from 'sharp';
-import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
-import { signIn } from './helpers';
+import { createJob, signIn, testImei } from './helpers';
 
 // From a run's verdict to a ready phone: photos on the run screen, the repair checklist, the function
 // test (a fail reopens diagnosis, a full pass makes the job ready) and the verdict confirmation. Step
@@ -11,25 +10,13 @@ const VERDICT = 'A module other than the front sensor flex makes it restart';
 const title = (page: Page) => page.getByRole('heading', { level: 1 });
 const status = (page: Page) => page.getByTestId('job-status');
 
-async function newJob(page: Page) {
-	const body = `0077${String(Date.now() % 1e10).padStart(10, '0')}`; // invented "00" test IMEI body
-	const res = await page.request.post('/api/jobs', {
-		data: {
-			customerName: 'Wren Holloway',
-			customerEmail: 'wren@example.test',
-			maker: 'Corvana',
-			model: 'Tern 5',
-			imei: `${body}${imeiCheckDigit(body)}`,
-			symptoms: ['restart-loop'],
-			liquid: 'fresh',
-			submerged: false,
-			passcodeStatus: 'given',
-			consentToOpen: true
-		}
+const newJob = (page: Page) =>
+	createJob(page, {
+		customerName: 'Wren Holloway',
+		customerEmail: 'wren@example.test',
+		imei: testImei('0077'),
+		symptoms: ['restart-loop']
 	});
-	expect(res.status(), await res.text()).toBe(201);
-	return ((await res.json()) as { id: string }).id;
-}
 
 /** The customer's approval of the quote happens elsewhere (quote journey); here it is one API call each. */
 async function moveJob(page: Page, jobId: string, ...to: string[]) {

@@ -1,6 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
-import { hydrated, signIn } from './helpers';
+import { createJob, hydrated, signIn, startRun, testImei } from './helpers';
 
 // The test server starts with 300 invented runs (TIDEMARK_DEMO_HISTORY in playwright.config.ts,
 // written by src/lib/server/insights/demo-history.ts over the shipped flows).
@@ -72,26 +71,8 @@ test('insights are for the lead only', async ({ page }) => {
 
 test('a technician gets the past runs from the step a new run stands on', async ({ page }) => {
 	await signIn(page, 'tech');
-	const body = `0044${String(Date.now() % 1e10).padStart(10, '0')}`;
-	const job = await page.request.post('/api/jobs', {
-		data: {
-			customerName: 'Ines Larkspur',
-			customerEmail: 'ines@example.test',
-			maker: 'Corvana',
-			model: 'Tern 5',
-			imei: `${body}${imeiCheckDigit(body)}`,
-			symptoms: ['no-power'],
-			liquid: 'fresh',
-			submerged: false,
-			passcodeStatus: 'given',
-			consentToOpen: true,
-			dataFirst: false
-		}
-	});
-	expect(job.status(), await job.text()).toBe(201);
-	const run = await page.request.post('/api/runs', { data: { jobId: (await job.json()).id, flowId: FLOW } });
-	expect(run.status(), await run.text()).toBe(201);
-	const runId = (await run.json()).id as string;
+	const job = await createJob(page, { imei: testImei('0044'), symptoms: ['no-power'] });
+	const runId = await startRun(page, job, FLOW);
 	const res = await page.request.get(`/api/runs/${runId}/history`);
 	expect(res.status()).toBe(200);
 	const history = await res.json();
@@ -122,26 +103,8 @@ test('at an isolation test the technician sees which follow-up test past runs ma
 	// flows/restart-loop-after-liquid.flow.yaml: "Isolation test with the front sensor flex unplugged"
 	// leads to two different tests (a 6-minute diode reading, a 20-minute isolation of the others).
 	await signIn(page, 'tech');
-	const body = `0045${String(Date.now() % 1e10).padStart(10, '0')}`;
-	const job = await page.request.post('/api/jobs', {
-		data: {
-			customerName: 'Ines Larkspur',
-			customerEmail: 'ines@example.test',
-			maker: 'Corvana',
-			model: 'Tern 5',
-			imei: `${body}${imeiCheckDigit(body)}`,
-			symptoms: ['restart-loop'],
-			liquid: 'fresh',
-			submerged: false,
-			passcodeStatus: 'given',
-			consentToOpen: true
-		}
-	});
-	expect(job.status(), await job.text()).toBe(201);
-	const run = await page.request.post('/api/runs', {
-		data: { jobId: (await job.json()).id, flowId: 'restart-loop-after-liquid' }
-	});
-	const runId = (await run.json()).id as string;
+	const job = await createJob(page, { imei: testImei('0045'), symptoms: ['restart-loop'] });
+	const runId = await startRun(page, job, 'restart-loop-after-liquid');
 	const history = await (await page.request.get(`/api/runs/${runId}/history?step=isolate-front-flex`)).json();
 	expect(history.runs, 'demo history passes this step at least five times').toBeGreaterThanOrEqual(5);
 	expect(history.suggestion).not.toBeNull();
