@@ -11,7 +11,7 @@ import { record } from '$lib/server/audit';
 import { checkFlow, type FlowProblem } from '$lib/flows/check';
 import { parseFlow, withLines } from '$lib/flows/parse';
 import { schemaProblems } from '$lib/flows/problems';
-import { flowSchema, type FlowDefinition } from '$lib/flows/schema';
+import { flowSchema, RESERVED_FLOW_IDS, type FlowDefinition } from '$lib/flows/schema';
 import { hasRole, type Role } from '$lib/roles';
 import { definitionColumns, highestVersion, withStepOrder, type StoredVersion } from './queries';
 
@@ -28,6 +28,15 @@ export class FlowAuthoringError extends Error {
 	) {
 		super(message);
 	}
+}
+
+function assertUsableId(id: string, nothing: string) {
+	if (RESERVED_FLOW_IDS.includes(id))
+		throw new FlowAuthoringError(
+			'invalid',
+			`The flow id "${id}" is taken by the library's own pages; ${nothing}`,
+			[{ code: 'schema', path: ['id'], message: `Choose another id than "${id}".` }]
+		);
 }
 
 function assertSenior(actor: Actor) {
@@ -86,6 +95,7 @@ export async function createDraft(
 			basedOnId = from.id;
 		} else {
 			definition = validShape(input.definition);
+			assertUsableId(definition.id, 'choose another.');
 			const inserted = await tx
 				.insert(flows)
 				.values({ id: definition.id, title: definition.title, symptoms: definition.symptoms })
@@ -136,6 +146,7 @@ export async function importDraft(actor: Actor, text: string): Promise<ImportedD
 			parsed.problems
 		);
 	const definition = parsed.definition;
+	assertUsableId(definition.id, 'nothing was imported. Change the id in the file and try again.');
 	const problems = withLines(checkFlow(definition).problems, parsed.locate);
 	const db = await getDb();
 	return db.transaction(async (tx) => {

@@ -107,6 +107,13 @@ describe('import of a .flow.yaml as a draft', () => {
 			expect(err.problems.length).toBeGreaterThan(0);
 			expect(err.problems.map((p) => p.message).join('\n')).toMatch(problem);
 		}
+		const reserved = await authoring
+			.importDraft(ana, (await v1Text()).replace(`id: ${FLOW}`, 'id: new'))
+			.catch((err: unknown) => err);
+		expect(reserved).toMatchObject({
+			code: 'invalid',
+			message: expect.stringMatching(/nothing was imported/)
+		});
 		const huge = `id: x\nsummary: "${'a'.repeat(600_000)}"\n`;
 		await expect(authoring.importDraft(ana, huge)).rejects.toMatchObject({
 			problems: [expect.objectContaining({ message: expect.stringMatching(/at most 512000/) })]

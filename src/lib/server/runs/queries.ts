@@ -428,17 +428,3 @@ export async function listForJob(jobId: string): Promise<RunSummary[]> {
 		finishedAt: r.finishedAt?.toISOString() ?? null
 	}));
 }
-
-/** How many runs each flow has had, for the library. */
-export async function countByFlow(flowIds: string[]): Promise<Map<string, number>> {
-	const out = new Map(flowIds.map((id) => [id, 0]));
-	if (flowIds.length === 0) return out;
-	const db = await getDb();
-	const rows = await db
-		.select({ flowId: flowVersions.flowId, n: sql<number>`count(*)::int` })
-		.from(runs)
-		.innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId))
-		.groupBy(flowVersions.flowId);
-	for (const r of rows) if (out.has(r.flowId)) out.set(r.flowId, r.n);
-	return out;
-}

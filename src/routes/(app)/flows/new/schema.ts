@@ -1,16 +1,13 @@
 import { z } from 'zod';
-import { kebabId } from '$lib/flows/schema';
+import { kebabId, RESERVED_FLOW_IDS } from '$lib/flows/schema';
 import { MAX_FLOW_CHARS } from '$lib/flows/parse';
 
 /** Largest upload: the largest flow text, in bytes (a character may take up to 4 bytes in UTF-8). */
 export const MAX_UPLOAD_BYTES = MAX_FLOW_CHARS * 4;
 
-/** Paths the library already uses: a flow with one of these ids could not be opened. */
-const RESERVED = ['new'];
-
 export const blankForm = z.object({
 	id: kebabId.refine(
-		(id) => !RESERVED.includes(id),
+		(id) => !RESERVED_FLOW_IDS.includes(id),
 		'That id is taken by the library itself; choose another.'
 	),
 	title: z
