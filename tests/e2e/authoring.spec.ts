@@ -1,6 +1,5 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
-import { signIn, type accounts } from './helpers';
+import { createJob, signIn, startRun, testImei, type accounts } from './helpers';
 
 // A senior changes a shipped flow in the browser and the lead reviews it; step ids, titles and
 // answer labels are quoted from flows/no-sound-after-liquid.flow.yaml. The demo seeds one senior,
@@ -9,13 +8,6 @@ const FLOW = 'no-sound-after-liquid';
 const OLD_TITLE = 'Rule out settings, then name the fault';
 const NEW_TITLE = 'Rule out the settings first, then name the fault';
 
-let serial = 0;
-/** Invented test IMEI ("00" body, check digit computed), different for every job. */
-const imei = () => {
-	const body = `0055${String(Date.now() % 1e8).padStart(8, '0')}${String(++serial).padStart(2, '0')}`;
-	return `${body}${imeiCheckDigit(body)}`;
-};
-
 async function as(browser: Browser, who: keyof typeof accounts, next = '/') {
 	const page = await (await browser.newContext()).newPage();
 	await signIn(page, who, next);
@@ -23,26 +15,15 @@ async function as(browser: Browser, who: keyof typeof accounts, next = '/') {
 }
 
 /** A job and a run of the flow's current version, started through the API as the technician. */
-async function startRun(tech: Page) {
-	const job = await tech.request.post('/api/jobs', {
-		data: {
-			customerName: 'Ysolde Brack',
-			customerEmail: 'ysolde@example.test',
-			maker: 'Corvana',
-			model: 'Tern 6',
-			imei: imei(),
-			symptoms: ['no-sound'],
-			liquid: 'fresh',
-			submerged: false,
-			passcodeStatus: 'given',
-			consentToOpen: true,
-			dataFirst: false
-		}
+async function startNoSoundRun(tech: Page) {
+	const job = await createJob(tech, {
+		customerName: 'Ysolde Brack',
+		customerEmail: 'ysolde@example.test',
+		model: 'Tern 6',
+		imei: testImei('0055'),
+		symptoms: ['no-sound']
 	});
-	expect(job.status(), await job.text()).toBe(201);
-	const run = await tech.request.post('/api/runs', { data: { jobId: (await job.json()).id, flowId: FLOW } });
-	expect(run.status(), await run.text()).toBe(201);
-	return ((await run.json()) as { id: string }).id;
+	return startRun(tech, job, FLOW);
 }
 
 const ready = (page: Page) => expect(page.locator('[data-ready="true"]')).toBeVisible();
@@ -52,7 +33,7 @@ test('a senior drafts, breaks and fixes a flow, the lead approves it, new runs u
 }) => {
 	test.setTimeout(180_000);
 	const tech = await as(browser, 'tech');
-	const earlier = await startRun(tech);
+	const earlier = await startNoSoundRun(tech);
 
 	// The senior starts a draft from the published version, from the flow's page.
 	const senior = await as(browser, 'senior', `/flows/${FLOW}`);
@@ -128,7 +109,7 @@ test('a senior drafts, breaks and fixes a flow, the lead approves it, new runs u
 	await expect(lead.getByText(/published version 2/)).toBeVisible();
 
 	// A new run starts on version 2...
-	const later = await startRun(tech);
+	const later = await startNoSoundRun(tech);
 	await tech.goto(`/runs/${later}`);
 	await ready(tech);
 	await expect(tech.getByRole('heading', { level: 1 })).toHaveText(NEW_TITLE);

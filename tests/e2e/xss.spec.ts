@@ -1,6 +1,5 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
-import { signIn, type accounts } from './helpers';
+import { createJob, signIn, startRun, testImei, type accounts } from './helpers';
 import { PAYLOADS, xssFlow as payloadFlow } from './xss-flow';
 
 // A new id each time, so the spec can run again against the same server.
@@ -90,28 +89,14 @@ test('XSS payloads in flow markdown never run: editor preview, version view, run
 	await tech.goto(`/flows/${xssFlow.id}`);
 	await assertInert(tech, seen, 'flow page summary');
 
-	const body = '00660000000001';
-	const job = await tech.request.post('/api/jobs', {
-		data: {
-			customerName: 'Pim Ardent',
-			customerEmail: 'pim@example.test',
-			maker: 'Corvana',
-			model: 'Tern 6',
-			imei: `${body}${imeiCheckDigit(body)}`,
-			symptoms: ['no-power'],
-			liquid: 'fresh',
-			submerged: false,
-			passcodeStatus: 'given',
-			consentToOpen: true,
-			dataFirst: false
-		}
+	const job = await createJob(tech, {
+		customerName: 'Pim Ardent',
+		customerEmail: 'pim@example.test',
+		model: 'Tern 6',
+		imei: testImei('0066'),
+		symptoms: ['no-power']
 	});
-	expect(job.status(), await job.text()).toBe(201);
-	const run = await tech.request.post('/api/runs', {
-		data: { jobId: (await job.json()).id, flowId: xssFlow.id }
-	});
-	expect(run.status(), await run.text()).toBe(201);
-	await tech.goto(`/runs/${(await run.json()).id}`);
+	await tech.goto(`/runs/${await startRun(tech, job, xssFlow.id)}`);
 	await expect(tech.locator('[data-ready="true"]')).toBeVisible();
 	await assertInert(tech, seen, 'run screen step');
 	await tech.getByRole('button', { name: /Looked/ }).click();
