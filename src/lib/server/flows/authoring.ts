@@ -96,36 +96,52 @@ export async function createDraft(
 		} else {
 			definition = validShape(input.definition);
 			assertUsableId(definition.id, 'choose another.');
-			const inserted = await tx
-				.insert(flows)
-				.values({ id: definition.id, title: definition.title, symptoms: definition.symptoms })
-				.onConflictDoNothing()
-				.returning({ id: flows.id });
-			if (inserted.length === 0)
+			if (!(await addFlowRow(tx, definition)))
 				throw new FlowAuthoringError(
 					'conflict',
 					`A flow with the id "${definition.id}" already exists; start a draft from its published version, or choose another id.`
 				);
 		}
-		const [row] = await tx
-			.insert(flowVersions)
-			.values({
-				flowId: definition.id,
-				status: 'draft',
-				authorId: actor.id,
-				basedOnId,
-				...definitionColumns(definition)
-			})
-			.returning();
-		await record(tx, {
-			actorId: actor.id,
-			action: 'flow.draft.create',
-			targetType: 'flow',
-			targetId: definition.id,
-			details: { draftId: row.id, basedOnId }
-		});
-		return withStepOrder(row);
+		return insertDraft(tx, actor, definition, basedOnId);
 	});
+}
+
+/** Adds the flow's own row unless the library has it; true when it was new. */
+async function addFlowRow(tx: Tx, definition: FlowDefinition): Promise<boolean> {
+	const inserted = await tx
+		.insert(flows)
+		.values({ id: definition.id, title: definition.title, symptoms: definition.symptoms })
+		.onConflictDoNothing()
+		.returning({ id: flows.id });
+	return inserted.length > 0;
+}
+
+/** Stores `definition` as a new draft of its flow and audits it. */
+async function insertDraft(
+	tx: Tx,
+	actor: Actor,
+	definition: FlowDefinition,
+	basedOnId: string | null,
+	details: Record<string, unknown> = {}
+): Promise<StoredVersion> {
+	const [row] = await tx
+		.insert(flowVersions)
+		.values({
+			flowId: definition.id,
+			status: 'draft',
+			authorId: actor.id,
+			basedOnId,
+			...definitionColumns(definition)
+		})
+		.returning();
+	await record(tx, {
+		actorId: actor.id,
+		action: 'flow.draft.create',
+		targetType: 'flow',
+		targetId: definition.id,
+		details: { draftId: row.id, basedOnId, ...details }
+	});
+	return withStepOrder(row);
 }
 
 export type ImportedDraft = { draft: StoredVersion; problems: FlowProblem[]; newFlow: boolean };
@@ -150,12 +166,7 @@ export async function importDraft(actor: Actor, text: string): Promise<ImportedD
 	const problems = withLines(checkFlow(definition).problems, parsed.locate);
 	const db = await getDb();
 	return db.transaction(async (tx) => {
-		const inserted = await tx
-			.insert(flows)
-			.values({ id: definition.id, title: definition.title, symptoms: definition.symptoms })
-			.onConflictDoNothing()
-			.returning({ id: flows.id });
-		const newFlow = inserted.length > 0;
+		const newFlow = await addFlowRow(tx, definition);
 		const [base] = newFlow
 			? []
 			: await tx
@@ -164,24 +175,11 @@ export async function importDraft(actor: Actor, text: string): Promise<ImportedD
 					.where(and(eq(flowVersions.flowId, definition.id), isNotNull(flowVersions.version)))
 					.orderBy(desc(flowVersions.version))
 					.limit(1);
-		const [row] = await tx
-			.insert(flowVersions)
-			.values({
-				flowId: definition.id,
-				status: 'draft',
-				authorId: actor.id,
-				basedOnId: base?.id ?? null,
-				...definitionColumns(definition)
-			})
-			.returning();
-		await record(tx, {
-			actorId: actor.id,
-			action: 'flow.draft.create',
-			targetType: 'flow',
-			targetId: definition.id,
-			details: { draftId: row.id, basedOnId: base?.id ?? null, imported: true, problems: problems.length }
+		const draft = await insertDraft(tx, actor, definition, base?.id ?? null, {
+			imported: true,
+			problems: problems.length
 		});
-		return { draft: withStepOrder(row), problems, newFlow };
+		return { draft, problems, newFlow };
 	});
 }
 
