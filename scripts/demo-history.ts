@@ -1,12 +1,9 @@
 /**
  * `npm run demo:history -- --runs 5000`: fills the demo database (DATA_DIR, default ./data) with a
  * year of invented runs for the insights. Refuses while the app has the data folder open.
- *
- * The server code uses Vite features ($lib, embedded migrations), so it is loaded through Vite's
- * SSR module loader rather than imported directly.
  */
 import { parseArgs } from 'node:util';
-import { createServer } from 'vite';
+import { dataDirInUse, runWithServerModules } from './server-modules';
 
 const { values } = parseArgs({
 	options: {
@@ -29,48 +26,32 @@ if (!Number.isInteger(runs) || runs < 1 || runs > 1_000_000) {
 process.env.DATA_DIR ||= 'data';
 process.env.TIDEMARK_DEMO = '1';
 
-const vite = await createServer({
-	appType: 'custom',
-	logLevel: 'error',
-	server: { middlewareMode: true, hmr: false, watch: null }
-});
-let code = 0;
-try {
-	const tasks = await vite.ssrLoadModule('/src/lib/server/insights/demo-setup.ts');
+await runWithServerModules(async (load) => {
+	const tasks = await load('/src/lib/server/insights/demo-setup.ts');
 	try {
 		await tasks.prepareDemo();
 	} catch (e) {
-		// Matched by name: the error class comes from Vite's module graph, not this file's.
-		if (e instanceof Error && e.constructor.name === 'DataDirInUseError') {
-			console.error(`${e.message}\nStop the app (Ctrl+C in its terminal), then run this again.`);
-			code = 1;
-		} else throw e;
+		const busy = dataDirInUse(e);
+		if (!busy) throw e;
+		console.error(busy);
+		return 1;
 	}
-	if (code === 0) {
-		const started = Date.now();
-		let last = 0;
-		const result = await tasks.generateHistory({
-			runs,
-			seed: values.seed ? Number(values.seed) : undefined,
-			onProgress: (done: number, total: number) => {
-				if (done === total || Date.now() - last > 1000) {
-					last = Date.now();
-					const pct = Math.round((done / total) * 100);
-					console.log(
-						`[history] ${done.toLocaleString('en')} / ${total.toLocaleString('en')} runs (${pct} %)`
-					);
-				}
+	const started = Date.now();
+	let last = 0;
+	const result = await tasks.generateHistory({
+		runs,
+		seed: values.seed ? Number(values.seed) : undefined,
+		onProgress: (done: number, total: number) => {
+			if (done === total || Date.now() - last > 1000) {
+				last = Date.now();
+				const pct = Math.round((done / total) * 100);
+				console.log(`[history] ${done.toLocaleString('en')} / ${total.toLocaleString('en')} runs (${pct} %)`);
 			}
-		});
-		console.log(
-			`[history] wrote ${result.runs.toLocaleString('en')} runs and ${result.steps.toLocaleString('en')} answered steps in ${((Date.now() - started) / 1000).toFixed(1)} s to ${process.env.DATA_DIR}. Start the app and open Insights as the lead.`
-		);
-	}
-	if (code === 0) await tasks.close();
-} catch (e) {
-	console.error(e);
-	code = 1;
-} finally {
-	await vite.close();
-}
-process.exit(code);
+		}
+	});
+	console.log(
+		`[history] wrote ${result.runs.toLocaleString('en')} runs and ${result.steps.toLocaleString('en')} answered steps in ${((Date.now() - started) / 1000).toFixed(1)} s to ${process.env.DATA_DIR}. Start the app and open Insights as the lead.`
+	);
+	await tasks.close();
+	return 0;
+});

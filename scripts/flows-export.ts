@@ -2,12 +2,9 @@
  * `npm run flows:export -- <flow-id> [--version N] [--out folder]`: writes a stored version (the
  * newest published one by default) as `flows/<flow-id>.flow.yaml`. Reads the database the app uses
  * (DATA_DIR, default ./data, or DATABASE_URL), so stop the app first when it runs on PGlite.
- *
- * The server code uses Vite features ($lib, embedded migrations), so it is loaded through Vite's
- * SSR module loader rather than imported directly.
  */
 import { parseArgs } from 'node:util';
-import { createServer } from 'vite';
+import { dataDirInUse, runWithServerModules } from './server-modules';
 
 const usage =
 	'Usage: npm run flows:export -- <flow-id> [--version N] [--out folder]\n' +
@@ -43,15 +40,10 @@ if (version !== undefined && !(Number.isInteger(version) && version >= 1)) {
 }
 process.env.DATA_DIR ||= 'data';
 
-const vite = await createServer({
-	appType: 'custom',
-	logLevel: 'error',
-	server: { middlewareMode: true, hmr: false, ws: false, watch: null }
-});
-let code = 0;
-try {
-	const { exportVersion } = await vite.ssrLoadModule('/src/lib/server/flows/export.ts');
-	const db = await vite.ssrLoadModule('/src/lib/server/db/index.ts');
+await runWithServerModules(async (load) => {
+	const { exportVersion } = await load('/src/lib/server/flows/export.ts');
+	const db = await load('/src/lib/server/db/index.ts');
+	let code = 0;
 	try {
 		const done = await exportVersion(positionals[0], version, values.out);
 		console.log(
@@ -59,18 +51,13 @@ try {
 		);
 	} catch (e) {
 		// Matched by name: the error classes come from Vite's module graph, not this file's.
-		const name = e instanceof Error ? e.constructor.name : '';
-		if (name === 'ExportError') console.error(`[flows] ${(e as Error).message}`);
-		else if (name === 'DataDirInUseError')
-			console.error(`${(e as Error).message}\nStop the app (Ctrl+C in its terminal), then run this again.`);
+		const busy = dataDirInUse(e);
+		if (busy) console.error(busy);
+		else if (e instanceof Error && e.constructor.name === 'ExportError')
+			console.error(`[flows] ${e.message}`);
 		else throw e;
 		code = 1;
 	}
 	await db.closeDb();
-} catch (e) {
-	console.error(e);
-	code = 1;
-} finally {
-	await vite.close();
-}
-process.exit(code);
+	return code;
+});
