@@ -19,6 +19,19 @@ describe('ExposurePanel', () => {
 		expect(screen.getByText(/2 m is deeper than 1 m/)).toBeInTheDocument();
 	});
 
+	it('judges nothing until the liquid is chosen at intake', () => {
+		render(ExposurePanel, {
+			rating: { code: null },
+			exposure: { liquid: 'unknown', submerged: false },
+			exposedAt: null,
+			now,
+			awaiting: 'Choose the liquid first.'
+		});
+		expect(screen.getByTestId('exposure-awaiting')).toHaveTextContent('Choose the liquid first.');
+		expect(screen.queryByTestId('urgency')).toBeNull();
+		expect(document.querySelector('[data-status]')).toBeNull();
+	});
+
 	it('shows "cannot tell yet" for IP68 without the maker’s declaration', () => {
 		render(ExposurePanel, {
 			rating: { code: 'IP68' },
