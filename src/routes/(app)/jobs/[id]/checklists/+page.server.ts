@@ -5,6 +5,7 @@ import * as checklists from '$lib/server/checklists/queries';
 import { ChecklistRuleError, FUNCTION_TESTS } from '$lib/server/checklists/queries';
 import { JobRuleError } from '$lib/server/jobs/queries';
 import { statusLabels } from '$lib/domain/jobStatus';
+import { renderMarkdown } from '$lib/markdown/render';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -14,7 +15,8 @@ export const load: PageServerLoad = async (event) => {
 		error(404, {
 			message: 'No checklists for this job: they open once a run of the job reaches its verdict.'
 		});
-	return { view, statusLabels };
+	// Rendered and sanitised here, so the page ships neither marked nor DOMPurify (as the run screen).
+	return { view, statusLabels, risksHtml: renderMarkdown(view.verdict.risks) };
 };
 
 const repairForm = z.object({ done: z.array(z.string().regex(/^r\d{1,3}$/)).max(200) });
