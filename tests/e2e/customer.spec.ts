@@ -173,6 +173,9 @@ test('report → mail → customer approves and pays → job paid and approved �
 	await expect(customer.getByTestId('quote-refunded')).toHaveText('€29.00');
 	await expect(customer.getByTestId('quote-due')).toHaveText('€0.00');
 	await expect(customer.getByRole('button', { name: /Pay/ })).toHaveCount(0);
+	// …and the customer is told by mail.
+	await expect.poll(() => mailTo(email).length, { timeout: 20_000 }).toBe(3);
+	expect(mailTo(email).some((m) => /Refund: €29\.00/.test(m.subject))).toBe(true);
 
 	// Revoking the link closes it with the same plain page as a made-up one.
 	await side.getByRole('button', { name: 'Revoke' }).click();

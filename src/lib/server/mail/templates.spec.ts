@@ -1,7 +1,7 @@
 // @ts-expect-error -- jsdom (a devDependency) ships no types and @types/jsdom is not installed.
 import { JSDOM } from 'jsdom';
 import { describe, expect, it } from 'vitest';
-import { escapeHtml, paymentReceipt, readyToCollect, reportReady, safeHref } from './templates';
+import { escapeHtml, paymentReceipt, readyToCollect, refundNotice, reportReady, safeHref } from './templates';
 
 // A hostile value in every field a customer or staff member can type.
 const nasty = `<script>alert("x")</script> & 'Quinn' <img src=x onerror=alert(1)>`;
@@ -96,6 +96,26 @@ describe('templates', () => {
 		expect(parse(eur.html).text).toContain(nasty);
 		expect(parse(eur.html).scripts).toBe(0);
 		expect(paymentReceipt({ ...base, amountMinor: 4950, currency: 'JPY' }).text).toContain('¥4,950');
+	});
+
+	it('tells the customer what was refunded, in minor units, with the text escaped in the HTML', () => {
+		// Source: ISO 4217 (EUR has 2 decimals), formatted by CLDR en-GB via Intl.
+		const notice = refundNotice({
+			shop,
+			customerName: 'Mira',
+			jobNumber: 'J-0042',
+			description: nasty,
+			amountMinor: 2900,
+			currency: 'eur',
+			refundedAt: new Date('2026-12-02T10:30:00Z'),
+			paymentRef: 'p-1'
+		});
+		expect(notice.template).toBe('refund-notice');
+		expect(notice.subject).toBe('Refund: €29.00 from Harbour & Sons <Repairs> (job J-0042)');
+		expect(notice.text).toContain('Refunded:   €29.00');
+		expect(notice.text).toContain('a few working days');
+		expect(parse(notice.html).text).toContain(nasty);
+		expect(parse(notice.html).scripts).toBe(0);
 	});
 
 	it('says what is left to pay at collection, or that nothing is', () => {

@@ -3,7 +3,7 @@
 import { formatMoney } from '$lib/domain/money';
 
 export type RenderedMail = { template: TemplateName; subject: string; text: string; html: string };
-export type TemplateName = 'report-ready' | 'payment-receipt' | 'ready-to-collect' | 'test';
+export type TemplateName = 'report-ready' | 'payment-receipt' | 'refund-notice' | 'ready-to-collect' | 'test';
 
 /** Shop details every mail signs with. */
 export type ShopInfo = { name: string; phone?: string; address?: string; locale?: string; timeZone?: string };
@@ -159,6 +159,53 @@ ${signatureText(d.shop)}
 		].join('\n')
 	);
 	return { template: 'payment-receipt', subject, text, html };
+}
+
+export type RefundNoticeData = {
+	shop: ShopInfo;
+	customerName: string;
+	jobNumber: string;
+	/** What the refunded payment was for. */
+	description: string;
+	amountMinor: number;
+	currency: string;
+	refundedAt: Date;
+	/** Our payment id, to quote when asking about the refund. */
+	paymentRef: string;
+};
+
+/** A refund confirmed by the payment service: how much went back, and that banks take a few days. */
+export function refundNotice(d: RefundNoticeData): RenderedMail {
+	const amount = formatMoney(d.amountMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB');
+	const when = formatDateTime(d.refundedAt, d.shop);
+	const subject = oneLine(`Refund: ${amount} from ${d.shop.name} (job ${d.jobNumber})`);
+	const text = `Hello ${d.customerName},
+
+We have refunded ${amount} of your payment. It goes back the way you paid; your bank or card
+issuer may take a few working days to show it.
+
+  For:        ${d.description}
+  Job:        ${d.jobNumber}
+  Refunded:   ${amount}
+  On:         ${when}
+  Reference:  ${d.paymentRef}
+
+${signatureText(d.shop)}
+`;
+	const row = (k: string, v: string, mono = false) =>
+		`<tr><td style="padding:4px 16px 4px 0;color:#5b6472;vertical-align:top">${k}</td><td style="padding:4px 0${mono ? ';font-family:monospace' : ''}">${escapeHtml(v)}</td></tr>`;
+	const html = layout(
+		d.shop,
+		subject,
+		[
+			p(`Hello ${escapeHtml(d.customerName)},`),
+			p(
+				`We have refunded <strong>${escapeHtml(amount)}</strong> of your payment. It goes back the way you paid; your bank or card issuer may take a few working days to show it.`
+			),
+			`<table style="border-collapse:collapse;margin:0 0 16px">${row('For', d.description)}${row('Job', d.jobNumber, true)}${row('Refunded', amount)}${row('On', when)}${row('Reference', d.paymentRef, true)}</table>`
+		].join('\n')
+	);
+	return { template: 'refund-notice', subject, text, html };
 }
 
 export type ReadyToCollectData = {

@@ -292,9 +292,15 @@ describe('payment', () => {
 		await expect(startPayment(job.id, q.id, 'rest', '/r/tok')).rejects.toThrow(/already paid in full/);
 		const r = await report.build(job.id, 'customer');
 		expect(r).toMatchObject({ paidMinor: 12900, refundedMinor: 4000 });
-		// No receipt for a refund: still the one receipt of the payment.
-		const receipts = (await mailsFor(job.id)).filter((m) => m.template === 'payment-receipt');
-		expect(receipts).toHaveLength(1);
+		// No receipt for a refund: still the one receipt of the payment, and one refund notice.
+		const mails = await mailsFor(job.id);
+		expect(mails.filter((m) => m.template === 'payment-receipt')).toHaveLength(1);
+		const notices = mails.filter((m) => m.template === 'refund-notice');
+		expect(notices).toHaveLength(1);
+		expect(notices[0].subject).toContain('€40.00');
+		// A replayed delivery of the same event queues nothing more.
+		expect((await processWebhook(payload, header)).body.outcome).not.toBe('applied: refund');
+		expect((await mailsFor(job.id)).filter((m) => m.template === 'refund-notice')).toHaveLength(1);
 	});
 
 	it('the diagnostic fee can be paid before approval; then only the rest is due', async () => {

@@ -10,7 +10,13 @@ import { quotes } from '$lib/server/db/schema/quotes';
 import type { Payment, PaymentStatus } from '$lib/server/db/schema/payments';
 import { record } from '$lib/server/audit';
 import { enqueue } from '$lib/server/mail/queue';
-import { paymentReceipt, readyToCollect, reportReady, type ShopInfo } from '$lib/server/mail/templates';
+import {
+	paymentReceipt,
+	readyToCollect,
+	refundNotice,
+	reportReady,
+	type ShopInfo
+} from '$lib/server/mail/templates';
 import { createCheckout } from '$lib/server/payments/checkout';
 import { onPaymentChange, type RefundChange } from '$lib/server/payments/changes';
 import { absoluteUrl } from '$lib/server/public-url';
@@ -131,7 +137,7 @@ export async function startPayment(jobId: string, quoteId: string, kind: Payment
 /**
  * Webhook effect for job payments, inside the webhook's transaction: the quote's paid amount
  * follows the payment (a confirmed refund takes its amount back), and a receipt is queued for a
- * confirmed payment.
+ * confirmed payment, a refund notice for a confirmed refund.
  */
 export async function applyJobPayment(
 	tx: Tx,
@@ -174,10 +180,25 @@ export async function applyJobPayment(
 			...(refund ? { refundId: refund.refundId } : {})
 		}
 	});
-	if (refund) return;
+	// A confirmed refund tells the customer; a refund that failed later (money back to the job) does not.
+	if (refund && delta > 0) return;
 	const [job] = await tx.select().from(jobs).where(eq(jobs.id, ref.jobId));
 	const customer = await customerOf(tx, job);
 	if (!customer?.email) return;
+	if (refund) {
+		const notice = refundNotice({
+			shop: await shopInfo(tx),
+			customerName: customer.name,
+			jobNumber: formatJobNumber(job.number),
+			description: payment.description,
+			amountMinor: refund.amountMinor,
+			currency: payment.currency,
+			refundedAt: new Date(),
+			paymentRef: payment.id
+		});
+		await enqueue(tx, { to: customer.email, ...notice, related: { type: 'job', id: ref.jobId } });
+		return;
+	}
 	const mail = paymentReceipt({
 		shop: await shopInfo(tx),
 		customerName: customer.name,
