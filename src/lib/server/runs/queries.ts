@@ -167,31 +167,24 @@ export async function recordEvent(
 ): Promise<RunEventResult> {
 	const db = await getDb();
 	return db.transaction(async (tx) => {
-		// One round trip locks the run, looks up the idempotency key, numbers the next step row and
-		// finds the answer a BACK revises; one more writes everything (PGlite runs each statement on
-		// the main thread, so an event is two statements between BEGIN and COMMIT).
-		const [locked] = isUuid(runId)
-			? await tx
-					.select({
-						run: runs,
-						seen: sql<RunEventResult | null>`(select rs.result from run_steps rs
-							where rs.run_id = runs.id and rs.idempotency_key = ${event.idempotencyKey})`,
-						seq: sql<number>`(select coalesce(max(rs.seq), 0)::int + 1 from run_steps rs
-							where rs.run_id = runs.id)`,
-						// The answer a BACK would revise: the newest one still standing.
-						last: sql<{
-							id: number;
-							seq: number;
-						} | null>`(select json_build_object('id', rs.id, 'seq', rs.seq)
-							from run_steps rs where rs.run_id = runs.id and rs.kind <> 'back' and rs.superseded_at is null
-							order by rs.seq desc limit 1)`
-					})
-					.from(runs)
-					.where(eq(runs.id, runId))
-					.for('update', { of: runs })
-			: [];
-		if (!locked) throw new RunRuleError(404, 'not-found', 'No run with this id.');
-		const { run, seen, seq, last } = locked;
+		// The lock first, then one read of the idempotency key, the next step number and the answer
+		// a BACK revises, then one write: four statements with BEGIN and COMMIT. The read must come
+		// after the lock: on PostgreSQL (READ COMMITTED) a statement that waited for the lock still
+		// sees the data as it was when it started, so reading in the locking statement would miss an
+		// event committed meanwhile on the same run (a duplicate step number instead of a 409 or a
+		// replay). PGlite runs one transaction at a time, but the rule is the same.
+		const run = await lockRun(tx, runId);
+		const [{ seen, seq, last }] = await tx
+			.select({
+				seen: sql<RunEventResult | null>`(select rs.result from run_steps rs
+					where rs.run_id = ${runId} and rs.idempotency_key = ${event.idempotencyKey})`,
+				seq: sql<number>`(select coalesce(max(rs.seq), 0)::int + 1 from run_steps rs where rs.run_id = ${runId})`,
+				// The answer a BACK would revise: the newest one still standing.
+				last: sql<{ id: number; seq: number } | null>`(select json_build_object('id', rs.id, 'seq', rs.seq)
+					from run_steps rs where rs.run_id = ${runId} and rs.kind <> 'back' and rs.superseded_at is null
+					order by rs.seq desc limit 1)`
+			})
+			.from(sql`(select 1) as one`);
 		if (seen) return seen;
 
 		if (run.status !== 'in-progress')
