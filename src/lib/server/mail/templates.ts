@@ -115,6 +115,20 @@ ${signatureText(d.shop)}
 	return { template: 'report-ready', subject, text, html };
 }
 
+type Fact = [label: string, value: string, mono?: boolean];
+
+/** The facts of a money mail: aligned lines for the plain text, a two-column table for the HTML. */
+function facts(list: Fact[]) {
+	const text = list.map(([k, v]) => `  ${`${k}:`.padEnd(12)}${v}`).join('\n');
+	const rows = list
+		.map(
+			([k, v, mono]) =>
+				`<tr><td style="padding:4px 16px 4px 0;color:#5b6472;vertical-align:top">${k}</td><td style="padding:4px 0${mono ? ';font-family:monospace' : ''}">${escapeHtml(v)}</td></tr>`
+		)
+		.join('');
+	return { text, html: `<table style="border-collapse:collapse;margin:0 0 16px">${rows}</table>` };
+}
+
 export type PaymentReceiptData = {
 	shop: ShopInfo;
 	customerName: string;
@@ -132,68 +146,59 @@ export function paymentReceipt(d: PaymentReceiptData): RenderedMail {
 	const amount = formatMoney(d.amountMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB');
 	const when = formatDateTime(d.paidAt, d.shop);
 	const subject = oneLine(`Receipt: ${amount} paid to ${d.shop.name} (job ${d.jobNumber})`);
+	const f = facts([
+		['For', d.description],
+		['Job', d.jobNumber, true],
+		['Amount', amount],
+		['Paid', when],
+		['Reference', d.paymentRef, true]
+	]);
 	const text = `Hello ${d.customerName},
 
 Thank you: we have received your payment.
 
-  For:        ${d.description}
-  Job:        ${d.jobNumber}
-  Amount:     ${amount}
-  Paid:       ${when}
-  Reference:  ${d.paymentRef}
+${f.text}
 
 Please keep this mail as your receipt.
 
 ${signatureText(d.shop)}
 `;
-	const row = (k: string, v: string, mono = false) =>
-		`<tr><td style="padding:4px 16px 4px 0;color:#5b6472;vertical-align:top">${k}</td><td style="padding:4px 0${mono ? ';font-family:monospace' : ''}">${escapeHtml(v)}</td></tr>`;
 	const html = layout(
 		d.shop,
 		subject,
 		[
 			p(`Hello ${escapeHtml(d.customerName)},`),
 			p('Thank you: we have received your payment.'),
-			`<table style="border-collapse:collapse;margin:0 0 16px">${row('For', d.description)}${row('Job', d.jobNumber, true)}${row('Amount', amount)}${row('Paid', when)}${row('Reference', d.paymentRef, true)}</table>`,
+			f.html,
 			p('Please keep this mail as your receipt.')
 		].join('\n')
 	);
 	return { template: 'payment-receipt', subject, text, html };
 }
 
-export type RefundNoticeData = {
-	shop: ShopInfo;
-	customerName: string;
-	jobNumber: string;
-	/** What the refunded payment was for. */
-	description: string;
-	amountMinor: number;
-	currency: string;
-	refundedAt: Date;
-	/** Our payment id, to quote when asking about the refund. */
-	paymentRef: string;
-};
+export type RefundNoticeData = Omit<PaymentReceiptData, 'paidAt'> & { refundedAt: Date };
 
 /** A refund confirmed by the payment service: how much went back, and that banks take a few days. */
 export function refundNotice(d: RefundNoticeData): RenderedMail {
 	const amount = formatMoney(d.amountMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB');
 	const when = formatDateTime(d.refundedAt, d.shop);
 	const subject = oneLine(`Refund: ${amount} from ${d.shop.name} (job ${d.jobNumber})`);
+	const f = facts([
+		['For', d.description],
+		['Job', d.jobNumber, true],
+		['Refunded', amount],
+		['On', when],
+		['Reference', d.paymentRef, true]
+	]);
 	const text = `Hello ${d.customerName},
 
 We have refunded ${amount} of your payment. It goes back the way you paid; your bank or card
 issuer may take a few working days to show it.
 
-  For:        ${d.description}
-  Job:        ${d.jobNumber}
-  Refunded:   ${amount}
-  On:         ${when}
-  Reference:  ${d.paymentRef}
+${f.text}
 
 ${signatureText(d.shop)}
 `;
-	const row = (k: string, v: string, mono = false) =>
-		`<tr><td style="padding:4px 16px 4px 0;color:#5b6472;vertical-align:top">${k}</td><td style="padding:4px 0${mono ? ';font-family:monospace' : ''}">${escapeHtml(v)}</td></tr>`;
 	const html = layout(
 		d.shop,
 		subject,
@@ -202,7 +207,7 @@ ${signatureText(d.shop)}
 			p(
 				`We have refunded <strong>${escapeHtml(amount)}</strong> of your payment. It goes back the way you paid; your bank or card issuer may take a few working days to show it.`
 			),
-			`<table style="border-collapse:collapse;margin:0 0 16px">${row('For', d.description)}${row('Job', d.jobNumber, true)}${row('Refunded', amount)}${row('On', when)}${row('Reference', d.paymentRef, true)}</table>`
+			f.html
 		].join('\n')
 	);
 	return { template: 'refund-notice', subject, text, html };
