@@ -130,7 +130,9 @@ test('health is public and pages carry the security headers', async ({ request }
 	expect(headers['referrer-policy']).toBe('same-origin');
 	expect(headers['x-frame-options']).toBe('DENY');
 	// An API call without a session is refused with JSON, not a redirect.
-	expect((await request.post('/theme', { data: { theme: 'purple' } })).status()).toBe(400);
+	const refused = await request.post('/api/jobs', { data: {} });
+	expect(refused.status()).toBe(401);
+	expect(refused.headers()['content-type']).toContain('application/json');
 });
 
 test('sign-out ends the session', async ({ page }) => {

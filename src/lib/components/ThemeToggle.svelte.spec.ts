@@ -1,27 +1,25 @@
 import { render, screen } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
-import { afterEach, describe, expect, it, vi } from 'vitest';
+import { afterEach, describe, expect, it } from 'vitest';
 import ThemeToggle from './ThemeToggle.svelte';
 
 describe('ThemeToggle', () => {
 	afterEach(() => {
 		document.documentElement.className = '';
-		vi.unstubAllGlobals();
+		document.cookie = 'theme=; max-age=0; path=/';
 	});
 
-	it('switches <html> to the dark bench theme and remembers the choice on the server', async () => {
-		const fetchMock = vi.fn().mockResolvedValue(new Response('{}'));
-		vi.stubGlobal('fetch', fetchMock);
+	it('switches <html> to the dark bench theme and remembers the choice in the theme cookie', async () => {
 		render(ThemeToggle);
 		const button = screen.getByRole('button', { name: /bench dark/i });
 		expect(button).toHaveAttribute('aria-pressed', 'false');
 		await userEvent.click(button);
 		expect(document.documentElement).toHaveClass('dark');
 		expect(button).toHaveAttribute('aria-pressed', 'true');
-		expect(fetchMock).toHaveBeenCalledWith(
-			'/theme',
-			expect.objectContaining({ method: 'POST', body: '{"theme":"dark"}' })
-		);
+		expect(document.cookie).toContain('theme=dark');
+		await userEvent.click(screen.getByRole('button', { name: /light/i }));
+		expect(document.documentElement).toHaveClass('light');
+		expect(document.cookie).toContain('theme=light');
 	});
 
 	it('starts pressed when the page was served dark', () => {

@@ -12,7 +12,6 @@ const routesDir = path.resolve('src/routes');
 const publicAllowList = new Set([
 	'(auth)/signin/+page.server.ts', // the sign-in form itself
 	'(auth)/signout/+page.server.ts', // clears whatever session the cookie holds
-	'theme/+server.ts', // a display preference cookie, used on the sign-in page too
 	'api/health/+server.ts', // liveness for monitors and the start-up benchmark; no data
 	'api/payments/webhook/+server.ts', // authenticated by the payment service's signature
 	'r/[token]/+page.server.ts', // the customer's report: authenticated by the link's token
