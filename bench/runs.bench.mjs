@@ -1,6 +1,7 @@
 // Issue 4 benchmark: guided runs against the built server.
 // 1. Step-event round trip (POST /api/runs/:id/events) at 16 concurrent clients under autocannon:
-//    p50/p95 (goal p95 <= 15 ms) and the ratio to a bare single-row insert into PGlite.
+//    p50/p95 (goal p95 <= 15 ms) and the ratio to a bare single-row insert into PGlite; beside it,
+//    the floor that the HTTP stack sets for 16 flat-out connections (GET /api/health).
 // 2. The longest event-loop stall in the server meanwhile (goal <= 50 ms), read from an env-gated,
 //    lead-only endpoint that wraps perf_hooks.monitorEventLoopDelay inside the server process.
 // 3. The JavaScript the run page ships, gzipped (goal <= 100 KB).
@@ -112,6 +113,10 @@ try {
 	const paced = await pacedLoad(SECONDS, PACED_RATE);
 	const pacedLoop = await asLead('GET', '/api/diagnostics/event-loop');
 
+	// The floor under the flat-out figure: the same 16 connections on the cheapest route that touches
+	// the database (GET /api/health: the hooks, one `select 1`, a small JSON answer), same server.
+	const floor = await floorLoad(SECONDS);
+
 	const p50 = pct(times, 50);
 	const p95 = pct(times, 95);
 	const insert = await bareInsert();
@@ -130,6 +135,11 @@ try {
 	console.log(
 		`  flat out, each of ${CLIENTS} clients waits behind the others: p50 is about ${CLIENTS} x the server time per event ` +
 			`(${(1000 / result.requests.average).toFixed(2)} ms at ${Math.round(result.requests.average)} req/s).`
+	);
+	console.log(
+		`  floor, GET /api/health (one select 1) flat out at ${CLIENTS} connections, same server and database: p50 ${fmt(pct(floor.times, 50))}, ` +
+			`p95 ${fmt(pct(floor.times, 95))} (${Math.round(floor.result.requests.average)} req/s); ` +
+			`flat-out event p95 / floor p95 = ${(p95 / pct(floor.times, 95)).toFixed(1)}x`
 	);
 	console.log(
 		`bare single-row insert (PGlite on disk, in the bench process): median ${fmt(insert.median)}, p95 ${fmt(insert.p95)}; ` +
@@ -180,6 +190,20 @@ try {
 		};
 		await Promise.all(runIds.map(client));
 		return { times };
+	}
+
+	/** GET /api/health under the same load as the events, with the same session cookie. */
+	async function floorLoad(seconds) {
+		const times = [];
+		const instance = autocannon({
+			url: `${base}/api/health`,
+			connections: CLIENTS,
+			duration: seconds,
+			headers: { cookie: tech }
+		});
+		instance.on('response', (_client, _status, _bytes, ms) => times.push(ms));
+		const result = await instance;
+		return { result, times };
 	}
 
 	/** Runs autocannon for `seconds`; every response time is kept for exact percentiles. */

@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { eq, sql } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { auditLog } from '$lib/server/db/schema';
@@ -316,14 +316,15 @@ describe('events', () => {
 });
 
 describe('transactions', () => {
-	it('leaves no half-written step when the run update fails after the step was inserted', async () => {
+	it('leaves no half-written event when the step row fails after the run row was updated', async () => {
 		const { run } = await newRun();
 		const db = await getDb();
-		// A trigger makes the UPDATE of the run row fail, which happens after the run_steps INSERT.
-		await db.execute(sql`create function tm_fail_run_update() returns trigger language plpgsql as
-			$$ begin raise exception 'forced failure after the step insert'; end $$`);
+		// A trigger makes the INSERT of the step row fail, after the run row was updated in the same
+		// statement.
+		await db.execute(sql`create function tm_fail_step_insert() returns trigger language plpgsql as
+			$$ begin raise exception 'forced failure after the run update'; end $$`);
 		await db.execute(
-			sql`create trigger tm_fail before update on runs for each row execute function tm_fail_run_update()`
+			sql`create trigger tm_fail before insert on run_steps for each row execute function tm_fail_step_insert()`
 		);
 		try {
 			await expect(
@@ -334,8 +335,8 @@ describe('transactions', () => {
 				)
 			).rejects.toThrow();
 		} finally {
-			await db.execute(sql`drop trigger tm_fail on runs`);
-			await db.execute(sql`drop function tm_fail_run_update()`);
+			await db.execute(sql`drop trigger tm_fail on run_steps`);
+			await db.execute(sql`drop function tm_fail_step_insert()`);
 		}
 		expect(await stepRows(run.id)).toEqual([]);
 		const detail = await runs.get(run.id);
@@ -347,6 +348,117 @@ describe('transactions', () => {
 			tech
 		);
 		expect(ok.seq).toBe(1);
+	});
+});
+
+// Events are read, checked and then written by one conditional statement; one that lost a race to
+// another change of the same run is decided again under the run's lock. These send events side by
+// side so that every read happens before any write (PGlite interleaves the awaits).
+describe('events that race', () => {
+	async function atCleanAndDry() {
+		const { run } = await newRun();
+		const walk = [
+			['power-on-as-received', 0],
+			['open-and-disconnect', 1],
+			['inspect-front-area', 0],
+			['isolate-front-flex', 1],
+			['isolate-other-modules', 1]
+		] as const;
+		for (const [stepId, outcome] of walk)
+			await runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
+		return run.id;
+	}
+	const event = (runId: string, type: 'ANSWER' | 'BACK', idempotencyKey = key()) =>
+		runs.recordEvent(
+			runId,
+			type === 'ANSWER'
+				? { type, stepId: 'clean-and-dry', outcome: 1, idempotencyKey }
+				: { type, stepId: 'clean-and-dry', idempotencyKey },
+			tech
+		);
+
+	it('numbers valid events one after the other', async () => {
+		const runId = await atCleanAndDry();
+		// "Dry longer" stays on clean-and-dry, so all three are valid in any order.
+		const results = await Promise.all([
+			event(runId, 'ANSWER'),
+			event(runId, 'ANSWER'),
+			event(runId, 'ANSWER')
+		]);
+		expect(results.map((r) => r.seq).sort()).toEqual([6, 7, 8]);
+		expect((await stepRows(runId)).map((r) => r.seq)).toEqual([1, 2, 3, 4, 5, 6, 7, 8]);
+	});
+
+	it('stores a key sent twice at once once, and answers both with the same result', async () => {
+		const runId = await atCleanAndDry();
+		const [a, b] = await Promise.all([
+			event(runId, 'ANSWER', 'same-key'),
+			event(runId, 'ANSWER', 'same-key')
+		]);
+		expect(b).toEqual(a);
+		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'same-key')).toHaveLength(1);
+	});
+
+	/**
+	 * Runs `meanwhile` after the event's read and before its write: the write is the only
+	 * `db.execute` an event that does not reach a verdict makes outside a transaction.
+	 */
+	async function between<T>(meanwhile: () => Promise<unknown>, send: () => Promise<T>): Promise<T> {
+		const db = await getDb();
+		const execute = db.execute.bind(db);
+		// db.execute returns a lazy query (a thenable); the stand-in returns a plain promise of its result.
+		const spy = vi
+			.spyOn(db, 'execute')
+			.mockImplementationOnce(((query: Parameters<typeof execute>[0]) =>
+				meanwhile().then(() => execute(query))) as unknown as typeof execute);
+		try {
+			return await send();
+		} finally {
+			spy.mockRestore();
+		}
+	}
+
+	it('a BACK that finds the run moved on by another BACK after its read is refused; one answer is revised', async () => {
+		const runId = await atCleanAndDry();
+		let first: Awaited<ReturnType<typeof event>> | undefined;
+		const late = await refusal(
+			between(
+				async () => (first = await event(runId, 'BACK')),
+				() => event(runId, 'BACK')
+			)
+		);
+		expect(first?.state.currentStep).toBe('isolate-other-modules');
+		expect(late).toMatchObject({ status: 409, code: 'stale-step' });
+		expect(late.state?.currentStep).toBe('isolate-other-modules');
+		const rows = await stepRows(runId);
+		expect(rows.filter((r) => r.kind === 'back')).toHaveLength(1);
+		expect(rows.filter((r) => r.supersededAt !== null).map((r) => r.stepId)).toEqual([
+			'isolate-other-modules'
+		]);
+	});
+
+	it('an answer whose run was abandoned after its read is refused and not stored; the run stays abandoned', async () => {
+		const runId = await atCleanAndDry();
+		const late = await refusal(
+			between(
+				() => runs.abandon(runId, 'Customer collected the phone', tech),
+				() => event(runId, 'ANSWER')
+			)
+		);
+		expect(late).toMatchObject({ status: 409, code: 'run-finished' });
+		expect(await stepRows(runId)).toHaveLength(5);
+		expect((await runs.get(runId))!.status).toBe('abandoned');
+	});
+
+	it('an answer whose key was stored by a copy of it after its read returns the stored result', async () => {
+		const runId = await atCleanAndDry();
+		let first: Awaited<ReturnType<typeof event>> | undefined;
+		const again = await between(
+			async () => (first = await event(runId, 'ANSWER', 'twice')),
+			() => event(runId, 'ANSWER', 'twice')
+		);
+		expect(again).toEqual(first);
+		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'twice')).toHaveLength(1);
 	});
 });
 

@@ -91,7 +91,12 @@ export const runSteps = pgTable(
 	},
 	(t) => [
 		uniqueIndex('run_steps_run_seq_idx').on(t.runId, t.seq),
-		uniqueIndex('run_steps_run_key_idx').on(t.runId, t.idempotencyKey)
+		uniqueIndex('run_steps_run_key_idx').on(t.runId, t.idempotencyKey),
+		// The answer a BACK revises is the newest one still standing; without this index finding it
+		// walks past every revised answer of the run.
+		index('run_steps_standing_idx')
+			.on(t.runId, t.seq)
+			.where(sql`${t.kind} <> 'back' and ${t.supersededAt} is null`)
 	]
 );
 

@@ -1,0 +1,1 @@
+CREATE INDEX "run_steps_standing_idx" ON "run_steps" USING btree ("run_id","seq") WHERE "run_steps"."kind" <> 'back' and "run_steps"."superseded_at" is null;
