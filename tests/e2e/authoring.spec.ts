@@ -1,5 +1,5 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { createJob, signIn, startRun, testImei, type accounts } from './helpers';
+import { createJob, hydrated, signIn, startRun, testImei, type accounts } from './helpers';
 
 // A senior changes a shipped flow in the browser and the lead reviews it; step ids, titles and
 // answer labels are quoted from flows/no-sound-after-liquid.flow.yaml. The demo seeds one senior,
@@ -129,4 +129,32 @@ test('a senior drafts, breaks and fixes a flow, the lead approves it, new runs u
 		status: 'in-progress',
 		flow: { id: FLOW, version: 2 }
 	});
+});
+
+test('the graph draws an answer that leads back to its own step beside the step, not behind it', async ({
+	browser
+}) => {
+	// flows/restart-loop-after-liquid.flow.yaml: "clean-and-dry" answers "Restarts less often; dry
+	// longer and test again" by staying where it is.
+	const senior = await as(browser, 'senior', '/flows/restart-loop-after-liquid');
+	await senior.getByRole('link', { name: 'Edit as a new draft' }).click();
+	await senior.getByRole('button', { name: /Start a draft from version 1/ }).click();
+	await expect(senior).toHaveURL(/\/drafts\/[0-9a-f-]{36}$/);
+	await hydrated(senior);
+	await senior.getByRole('tab', { name: 'Graph' }).click();
+	const graph = senior.locator('[data-flow-graph]');
+	const step = await graph.locator('[data-node="clean-and-dry"]').boundingBox();
+	const loop = graph.getByRole('group', { name: /clean-and-dry → Restarts less often.* → clean-and-dry/ });
+	// Edge labels are drawn in a layer of their own, not inside the arrow's group.
+	const label = graph.getByText(/^Restarts less often; dry lo/);
+	await expect(label).toBeVisible();
+	const path = await loop.locator('path').first().boundingBox();
+	const box = await label.boundingBox();
+	expect(step && path && box).toBeTruthy();
+	// The label stands beside the way up, clear of the step.
+	expect(box!.x).toBeGreaterThan(step!.x + step!.width);
+	// The arrow runs from below the step, past its right-hand side, to above it.
+	expect(path!.x + path!.width).toBeGreaterThan(step!.x + step!.width);
+	expect(path!.y).toBeLessThan(step!.y);
+	expect(path!.y + path!.height).toBeGreaterThan(step!.y + step!.height);
 });
