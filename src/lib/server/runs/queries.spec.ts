@@ -295,6 +295,37 @@ describe('events', () => {
 		expect(detail!.steps[2].answer).toEqual({ back: { revised: 2 } });
 	});
 
+	it('BACK after BACK, and BACK after a new answer, each revise the newest answer still standing', async () => {
+		const { run } = await newRun();
+		const send = (type: 'ANSWER' | 'BACK', stepId: string, outcome?: number) =>
+			runs.recordEvent(
+				run.id,
+				type === 'ANSWER'
+					? { type, stepId, outcome, idempotencyKey: key() }
+					: { type, stepId, idempotencyKey: key() },
+				tech
+			);
+		await send('ANSWER', 'power-on-as-received', 0); // 1
+		await send('ANSWER', 'open-and-disconnect', 1); // 2
+		await send('ANSWER', 'inspect-front-area', 1); // 3: No corrosion seen
+		expect((await send('BACK', 'isolate-front-flex')).state.currentStep).toBe('inspect-front-area'); // 4
+		expect((await send('BACK', 'inspect-front-area')).state.currentStep).toBe('open-and-disconnect'); // 5
+		await send('ANSWER', 'open-and-disconnect', 1); // 6
+		expect((await send('BACK', 'inspect-front-area')).state.currentStep).toBe('open-and-disconnect'); // 7
+		const detail = await runs.get(run.id);
+		expect(detail!.steps.map((s) => [s.seq, s.kind === 'back' ? s.answer : s.supersededAt !== null])).toEqual(
+			[
+				[1, false],
+				[2, true],
+				[3, true],
+				[4, { back: { revised: 3 } }],
+				[5, { back: { revised: 2 } }],
+				[6, true],
+				[7, { back: { revised: 6 } }]
+			]
+		);
+	});
+
 	it('refuses events on a finished run and abandons only a run under way, with its reason', async () => {
 		const { run } = await newRun();
 		const abandoned = await runs.abandon(run.id, '  Customer collected the phone unrepaired ', tech);
