@@ -297,7 +297,7 @@ describe('events', () => {
 
 	it('BACK after BACK, and BACK after a new answer, each revise the newest answer still standing', async () => {
 		const { run } = await newRun();
-		const send = (type: 'ANSWER' | 'BACK', stepId: string, outcome?: number) =>
+		const send = (type: 'ANSWER' | 'BACK', stepId: string, outcome = 0) =>
 			runs.recordEvent(
 				run.id,
 				type === 'ANSWER'

@@ -326,7 +326,8 @@ async function planEvent(
 		actor_id: actor.id,
 		entered_at: run.updatedAt.toISOString(),
 		key: event.idempotencyKey,
-		result,
+		// The response, stored for a repeated key; its snapshot is the run's, added in SQL (writeSteps).
+		result: { seq, state: { ...result.state, snapshot: undefined } },
 		revises: revises?.id ?? null
 	};
 	return {
@@ -362,7 +363,8 @@ type StepWrite = {
 	actor_id: string;
 	entered_at: string;
 	key: string;
-	result: RunEventResult;
+	/** The response without its snapshot (the run's `snapshot` above goes in its place). */
+	result: { seq: number; state: Omit<RunState, 'snapshot'> & { snapshot: undefined } };
 	/** The run_steps row a BACK supersedes. */
 	revises: number | null;
 };
@@ -391,7 +393,8 @@ async function writeSteps(db: DB | Tx, writes: StepWrite[]): Promise<Map<string,
 		), step as (
 			insert into run_steps (run_id, seq, step_id, kind, answer, notes, actor_id, entered_at,
 				answered_at, idempotency_key, result)
-			select i.run_id, i.seq, i.from_step, i.kind, i.answer, i.notes, i.actor_id, i.entered_at, i.at, i.key, i.result
+			select i.run_id, i.seq, i.from_step, i.kind, i.answer, i.notes, i.actor_id, i.entered_at, i.at, i.key,
+				jsonb_set(i.result, '{state,snapshot}', i.snapshot)
 			from input i join moved on moved.id = i.run_id
 			returning run_id, id
 		), revised as (
