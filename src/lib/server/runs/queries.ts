@@ -484,8 +484,14 @@ async function decideGroup() {
 	const planned: { pending: Pending; plan: EventPlan; guessed: boolean }[] = [];
 	for (const runId of first.keys()) inFlight.add(runId);
 	try {
+		// The guesses as they are now: another decision on the same run may forget one meanwhile.
+		const guesses = new Map<string, EventRead>();
+		for (const runId of first.keys()) {
+			const guess = standing.get(runId);
+			if (guess) guesses.set(runId, guess);
+		}
 		const db = await getDb();
-		const unknown = [...first.values()].filter((p) => !standing.has(p.runId));
+		const unknown = [...first.values()].filter((p) => !guesses.has(p.runId));
 		const reads = unknown.length
 			? await readForEvents(
 					db,
@@ -493,7 +499,7 @@ async function decideGroup() {
 				)
 			: new Map<string, EventRead>();
 		for (const p of first.values()) {
-			const guess = standing.get(p.runId);
+			const guess = guesses.get(p.runId);
 			const read = guess ?? reads.get(p.runId);
 			try {
 				if (!read) throw new RunRuleError(404, 'not-found', 'No run with this id.');
