@@ -491,6 +491,44 @@ describe('events that race', () => {
 		expect(again).toEqual(first);
 		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'twice')).toHaveLength(1);
 	});
+
+	it('events sent together share one read; a run abandoned while it runs still gets its own answer', async () => {
+		// The first run was just answered here, so its state is remembered and not read; the second
+		// run has never been answered, so the group reads it, and the first run is abandoned meanwhile.
+		const remembered = await atCleanAndDry();
+		const { run: fresh } = await newRun();
+		const db = await getDb();
+		const select = db.select.bind(db);
+		const reads = vi.spyOn(db, 'select');
+		reads.mockImplementationOnce(((fields: Parameters<typeof select>[0]) => {
+			const query = select(fields);
+			return {
+				from: (table: Parameters<typeof query.from>[0]) => ({
+					where: (where: Parameters<ReturnType<typeof query.from>['where']>[0]) =>
+						runs
+							.abandon(remembered, 'Customer collected the phone', tech)
+							.then(() => query.from(table).where(where))
+				})
+			};
+		}) as unknown as typeof select);
+		try {
+			const [late, first] = await Promise.allSettled([
+				event(remembered, 'ANSWER'),
+				runs.recordEvent(
+					fresh.id,
+					{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
+					tech
+				)
+			]);
+			expect(reads).toHaveBeenCalledTimes(1);
+			expect(first.status).toBe('fulfilled');
+			expect(late.status === 'rejected' && late.reason).toMatchObject({ status: 409, code: 'run-finished' });
+		} finally {
+			reads.mockRestore();
+		}
+		expect(await stepRows(remembered)).toHaveLength(5);
+		expect(await stepRows(fresh.id)).toHaveLength(1);
+	});
 });
 
 describe('pinned version', () => {
