@@ -15,6 +15,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { randomUUID } from 'node:crypto';
 import { createServer, type ViteDevServer } from 'vite';
+import { toCleanAndDry } from '../src/lib/server/runs/walks';
 
 const RUNS = Number(process.env.BENCH_INSIGHTS_RUNS ?? 100_000);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
@@ -207,13 +208,7 @@ try {
 		);
 		const run = await runsQ.start(job.id, 'restart-loop-after-liquid', techUser);
 		// Walk to "clean-and-dry", whose "dry longer" answer loops back to itself (as bench/runs.bench.mjs).
-		for (const [stepId, outcome] of [
-			['power-on-as-received', 0],
-			['open-and-disconnect', 1],
-			['inspect-front-area', 0],
-			['isolate-front-flex', 1],
-			['isolate-other-modules', 1]
-		] as const)
+		for (const [stepId, outcome] of toCleanAndDry)
 			await runsQ.recordEvent(
 				run.id,
 				{ type: 'ANSWER', stepId, outcome, idempotencyKey: randomUUID() },

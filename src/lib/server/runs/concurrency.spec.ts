@@ -12,6 +12,7 @@ import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import * as runs from './queries';
+import { toCleanAndDry } from './walks';
 
 // Two events for the same run at the same moment, on a PostgreSQL server, where transactions really
 // run side by side (PGlite runs one at a time). Runs when TEST_DATABASE_URL names a disposable
@@ -62,14 +63,7 @@ describe.runIf(url)('step events side by side on PostgreSQL', () => {
 			})
 		);
 		const run = await runs.start(job.id, FLOW, tech);
-		const walk = [
-			['power-on-as-received', 0],
-			['open-and-disconnect', 1],
-			['inspect-front-area', 0],
-			['isolate-front-flex', 1],
-			['isolate-other-modules', 1]
-		] as const;
-		for (const [stepId, outcome] of walk)
+		for (const [stepId, outcome] of toCleanAndDry)
 			await runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: randomUUID() }, tech);
 		return run.id;
 	}

@@ -13,6 +13,7 @@ import * as library from '$lib/server/flows/queries';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import * as runs from './queries';
 import { RunRuleError } from './queries';
+import { toCleanAndDry } from './walks';
 
 // Real in-memory PGlite migrated from drizzle/ (DATA_DIR=memory:// in vite.config.ts). The shipped
 // restart-loop flow is the fixture: its steps and outcomes are quoted from
@@ -382,20 +383,14 @@ describe('transactions', () => {
 	});
 });
 
-// Events are read, checked and then written by one conditional statement; one that lost a race to
-// another change of the same run is decided again under the run's lock. These send events side by
-// side so that every read happens before any write (PGlite interleaves the awaits).
+// Events are read (or their run's standing remembered), checked, and written by one conditional
+// statement per group; one that lost a race to another change of the same run is decided again
+// under the run's lock. These send events side by side, or put another change between an event's
+// read and its write.
 describe('events that race', () => {
 	async function atCleanAndDry() {
 		const { run } = await newRun();
-		const walk = [
-			['power-on-as-received', 0],
-			['open-and-disconnect', 1],
-			['inspect-front-area', 0],
-			['isolate-front-flex', 1],
-			['isolate-other-modules', 1]
-		] as const;
-		for (const [stepId, outcome] of walk)
+		for (const [stepId, outcome] of toCleanAndDry)
 			await runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
 		return run.id;
 	}
