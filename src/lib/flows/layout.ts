@@ -61,7 +61,8 @@ export const NODE_SIZE: Record<NodeKind, { width: number; height: number }> = {
 const MAX_LABEL = 28;
 const shorten = (s: string) => (s.length > MAX_LABEL ? `${s.slice(0, MAX_LABEL - 1)}…` : s);
 // IBM Plex Sans at 12 px averages about 6.5 px per character (measured in the browser, rounded up).
-const labelWidth = (s: string) => Math.round(s.length * 6.5 + 16);
+/** The width an arrow's label takes on the graph, padding included. */
+export const labelWidth = (s: string) => Math.round(s.length * 6.5 + 16);
 
 /** Marks per step from the checker's problems. */
 export function marksFrom(problems: FlowProblem[]): Map<string, { marks: Set<StepMark>; count: number }> {
