@@ -11,7 +11,15 @@ export const CAUTION_CODES = [
 	'lead',
 	'flux-fume',
 	'esd',
-	'sharp'
+	'sharp',
+	'eye',
+	'freeze-spray',
+	'electrolyte',
+	'contaminated',
+	'uv-resin',
+	'bench-supply',
+	'charging-wet',
+	'ultrasonic'
 ] as const;
 export type CautionCode = (typeof CAUTION_CODES)[number];
 
@@ -57,8 +65,8 @@ export const CAUTIONS: Record<CautionCode, Caution> = {
 	lead: {
 		code: 'lead',
 		words: 'Leaded solder',
-		rule: 'Wash hands before eating; keep food and drink off the bench.',
-		why: 'Lead is toxic when swallowed; RoHS limits it to 0.1 % by weight in homogeneous materials (Directive 2011/65/EU Annex II), so leaded solder needs its own hygiene.'
+		rule: 'Wash hands before eating, drinking or smoking; no food or drink at the bench; clean the bench wet, never by blowing.',
+		why: 'Lead is toxic when swallowed or breathed as dust. Occupational lead rules call for this hygiene: OSHA 29 CFR 1910.1025 (hygiene facilities and practices) and, in Great Britain, the Control of Lead at Work Regulations 2002 (HSE).'
 	},
 	'flux-fume': {
 		code: 'flux-fume',
@@ -77,6 +85,54 @@ export const CAUTIONS: Record<CautionCode, Caution> = {
 		words: 'Sharp edges',
 		rule: 'Tape cracked glass before handling and cut away from your hands.',
 		why: 'Cracked glass and blades cut (common practice, no published source).'
+	},
+	eye: {
+		code: 'eye',
+		words: 'Eye protection',
+		rule: 'Wear safety glasses while prying glass, cutting adhesive or soldering.',
+		why: 'Glass shards, springing clips and spitting flux or solder reach the eyes without warning (common practice, no published source).'
+	},
+	'freeze-spray': {
+		code: 'freeze-spray',
+		words: 'Freeze spray',
+		rule: 'Short bursts only, never on skin; no flame, hot air or sparks nearby; ventilate; ground yourself before spraying near the board.',
+		why: 'The spray causes cold burns on contact, most cans use a flammable propellant, and the jet can build up static charge (safety data sheets of the product category; common practice).'
+	},
+	electrolyte: {
+		code: 'electrolyte',
+		words: 'Leaking electrolyte',
+		rule: 'Nitrile gloves and eye protection, good ventilation; do not touch or smell the residue; the cell goes into the fire-resistant container.',
+		why: 'The electrolyte salt (LiPF₆) forms hydrogen fluoride with moisture; the NIOSH Pocket Guide lists hydrogen fluoride at REL 3 ppm TWA, 6 ppm ceiling (figures from memory: check the guide). Handling practice is common practice.'
+	},
+	contaminated: {
+		code: 'contaminated',
+		words: 'Contaminated liquid',
+		rule: 'Gloves for a phone that was in sewage, toilet water or an unknown chemical; clean it before the bench; wash hands afterwards.',
+		why: 'Sewage and toilet water carry germs, and an unknown chemical may burn or poison (common practice, no published source; follow your shop\'s hygiene procedure).'
+	},
+	'uv-resin': {
+		code: 'uv-resin',
+		words: 'UV-cured resin',
+		rule: 'Gloves while applying UV-cured solder mask; wipe spills at once; cure fully before handling bare.',
+		why: 'Uncured acrylate resins are skin sensitisers: repeated contact can cause allergic dermatitis (safety data sheets of UV-cured solder masks; common practice).'
+	},
+	'bench-supply': {
+		code: 'bench-supply',
+		words: 'Bench supply on a board',
+		rule: "Battery disconnected; check polarity; set the current limit before switching on; never above the line's nominal voltage.",
+		why: 'Reversed polarity, an unlimited current or an over-voltage burns parts and tracks that were still good (common practice, no published source).'
+	},
+	'charging-wet': {
+		code: 'charging-wet',
+		words: 'Charging after liquid',
+		rule: 'Only once the phone has been opened, dried and cleaned; never unattended; on a non-flammable surface, away from anything that burns.',
+		why: 'Charging voltage on a wet port or board drives corrosion, and a liquid-damaged cell or board can short and overheat (common practice; OSHA Safety and Health Information Bulletin on lithium batteries, 2019, for the fire risk).'
+	},
+	ultrasonic: {
+		code: 'ultrasonic',
+		words: 'Ultrasonic cleaner',
+		rule: 'Shields off first; never put the cell, microphones or sensors with open ports in; a flammable solvent only in a tank built for it.',
+		why: 'Cavitation tears microphone and pressure-sensor membranes, and an ordinary tank heats and can ignite flammable solvent vapour (common practice, no published source).'
 	}
 };
 

@@ -39,10 +39,26 @@ const minutes = z
 	.max(24 * 60, 'more than a day of hands-on time is surely a typo')
 	.meta({ description: 'Expected hands-on minutes for this step' });
 
+/** Where a number comes from: a named published source, the maker's documentation, or the trade's common practice. */
+export const BASES = ['published', 'maker', 'common-practice'] as const;
+export type Basis = (typeof BASES)[number];
+
+export const provenanceSchema = z.strictObject({
+	about: text.meta({ description: 'The value(s) this covers, e.g. "0.02 A standby limit"' }),
+	basis: z.enum(BASES).meta({ description: 'published, maker (documentation) or common-practice (no published source)' }),
+	source: text.optional().meta({
+		description: 'The named source (required when basis is published), or a note such as "from memory"'
+	})
+});
+
 const common = {
 	title: text,
 	body: markdown.optional(),
-	cautions: z.array(caution).optional()
+	cautions: z.array(caution).optional(),
+	provenance: z
+		.array(provenanceSchema)
+		.optional()
+		.meta({ description: 'Where every number this step asks the technician to compare against comes from' })
 };
 
 export const outcomeSchema = z.strictObject({
@@ -132,6 +148,7 @@ export type VerdictStep = z.infer<typeof verdictStepSchema>;
 export type Outcome = z.infer<typeof outcomeSchema>;
 export type Range = z.infer<typeof rangeSchema>;
 export type Domain = z.infer<typeof domainSchema>;
+export type Provenance = z.infer<typeof provenanceSchema>;
 export type Verdict = z.infer<typeof verdictSchema>;
 
 // In its own zod-free module so the run screen's machine ships without the validator.
