@@ -133,6 +133,9 @@ export const flowSchema = z
 		title: text,
 		summary: markdown,
 		symptoms: z.array(kebabId).meta({ description: 'Tags used to suggest this flow at intake' }),
+		changelog: markdown.optional().meta({
+			description: 'What changed in this version and why; shown in the library beside the version'
+		}),
 		start: z.string().meta({ description: 'Id of the first step' }),
 		steps: z.record(kebabId, stepSchema)
 	})

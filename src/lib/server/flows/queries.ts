@@ -129,7 +129,7 @@ async function importOne(tx: Tx, definition: FlowDefinition, file: string): Prom
 			status: 'published',
 			...cols,
 			publishedAt: now,
-			changelog: `Imported from flows/${file}`
+			changelog: definition.changelog?.trim() || `Imported from flows/${file}`
 		})
 		.returning({ id: flowVersions.id });
 	await tx
