@@ -62,3 +62,56 @@ export async function startRun(page: Page, jobId: string, flowId: string) {
 	expect(res.status(), await res.text()).toBe(201);
 	return ((await res.json()) as { id: string }).id;
 }
+
+type WalkStep = {
+	kind: string;
+	outcomes?: { label: string; next: string }[];
+	ranges?: { min?: number; max?: number; next: string }[];
+	domain?: { min?: number; max?: number };
+};
+
+/**
+ * Walks a run to a verdict through the API without knowing the flow: at each step it prefers an
+ * answer that leads straight to a verdict, then one to a step not seen yet, so it ends whatever
+ * the flow's wording or step ids. Returns the verdict step's id.
+ */
+export async function walkToVerdict(page: Page, runId: string) {
+	const res = await page.request.get(`/api/runs/${runId}`);
+	expect(res.status(), await res.text()).toBe(200);
+	const run = (await res.json()) as {
+		currentStep: string;
+		flow: { definition: { steps: Record<string, WalkStep> } };
+	};
+	const steps = run.flow.definition.steps;
+	let step = run.currentStep;
+	const seen = new Set([step]);
+	for (let i = 0; i < 100 && steps[step].kind !== 'verdict'; i++) {
+		const s = steps[step];
+		const exits = (s.outcomes ?? s.ranges ?? []).map((e, index) => ({ e, index }));
+		const pick =
+			exits.find(({ e }) => steps[e.next]?.kind === 'verdict') ??
+			exits.find(({ e }) => !seen.has(e.next)) ??
+			exits[0];
+		const event = s.outcomes
+			? { type: 'ANSWER', outcome: pick.index }
+			: { type: 'MEASURE', value: readingIn(pick.e as { min?: number; max?: number }, s.domain) };
+		const r = await page.request.post(`/api/runs/${runId}/events`, {
+			data: { ...event, stepId: step, idempotencyKey: `walk-${runId}-${i}` }
+		});
+		expect(r.status(), await r.text()).toBe(200);
+		step = ((await r.json()) as { state: { currentStep: string } }).state.currentStep;
+		seen.add(step);
+	}
+	expect(steps[step].kind).toBe('verdict');
+	return step;
+}
+
+/** A reading inside a half-open range [min, max) and the step's domain. */
+function readingIn(range: { min?: number; max?: number }, domain: { min?: number; max?: number } = {}) {
+	const lo = range.min ?? domain.min;
+	const hi = range.max ?? domain.max;
+	if (lo !== undefined && hi !== undefined) return (lo + hi) / 2;
+	if (lo !== undefined) return lo + 1;
+	if (hi !== undefined) return hi - 1;
+	return 0;
+}

@@ -10,6 +10,13 @@ describe('renderMarkdown', () => {
 		expect(html).toMatch(/<input[^>]*type="checkbox"/);
 	});
 
+	it('names each task box after its item, so the box has an accessible name (WCAG 4.1.2)', () => {
+		const html = renderMarkdown('- [ ] Fit **new** adhesive\n- [x] Photo "before" & after\n- plain');
+		expect(html).toMatch(/<input aria-label="Fit new adhesive"[^>]*type="checkbox"/);
+		expect(html).toMatch(/<input aria-label="Photo &quot;before&quot; &amp; after"[^>]*checked/);
+		expect(html).toContain('<li>plain</li>');
+	});
+
 	// Payloads from the OWASP XSS Filter Evasion Cheat Sheet (common forms, quoted from memory).
 	it.each([
 		'<script>alert(1)</script>',
