@@ -44,6 +44,12 @@ export const navItems: NavItem[] = [
 		label: 'Settings',
 		role: 'lead',
 		description: 'Shop name, currency and tax, report link lifetime, cautions and terms.'
+	},
+	{
+		href: '/help',
+		label: 'Help',
+		role: 'technician',
+		description: 'Short guides per role, the cautions and how to write a good flow.'
 	}
 ];
 

@@ -97,7 +97,13 @@ test('every page passes axe-core (WCAG 2.2 A/AA) in both themes at tablet and de
 		f.outboxHref,
 		'/staff',
 		'/settings',
-		'/account'
+		'/account',
+		'/help',
+		'/help/technician',
+		'/help/senior',
+		'/help/lead',
+		'/help/cautions',
+		'/help/writing-flows'
 	];
 	const publicPages = ['/signin', f.customerLink];
 	const storage = await page.context().storageState();
