@@ -9,7 +9,6 @@ const v = (name: string) => `rgb(var(--tm-${name}) / <alpha-value>)`;
 
 export default {
 	content: ['./src/**/*.{html,svelte,svx,ts,js}'],
-	darkMode: 'class',
 	theme: {
 		extend: {
 			colors: {
