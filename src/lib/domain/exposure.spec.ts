@@ -98,7 +98,8 @@ describe('assessExposure — edge cases (our design choices, IEC 60529 via trade
 		(liquid) => {
 			const r = assessExposure({ code: 'IP67' }, { liquid, submerged: true, depthM: 0.2, minutes: 1 });
 			expect(r).toMatchObject({ status: 'outside-test-conditions', reasons: ['liquid'] });
-			expect(r.explanation).toMatch(/fresh water only/);
+			expect(r.explanation).toMatch(/not fresh water/);
+			expect(r.explanation).toMatch(/clause from memory/);
 		}
 	);
 
@@ -152,6 +153,93 @@ describe('assessExposure — edge cases (our design choices, IEC 60529 via trade
 	});
 });
 
+describe('assessExposure — test conditions of the immersion tests (IEC 60529 digits 7/8: fresh water within 5 K of the specimen, specimen at rest; published, via trade-reference §9; clause from memory)', () => {
+	const still = (extra: Partial<Exposure> = {}): Exposure => ({
+		...fresh(0.5, 5),
+		temperature: 'room',
+		motion: 'still',
+		soapy: false,
+		...extra
+	});
+
+	it('still fresh water at room temperature within the limits is within, and says which conditions it assumed', () => {
+		const r = assessExposure({ code: 'IP67' }, still());
+		expect(r.status).toBe('within');
+		expect(r.explanation).toMatch(/in still fresh water near the phone’s temperature/);
+	});
+
+	it.each<['warm' | 'hot']>([['warm'], ['hot']])(
+		'%s water (more than 5 K warmer than the phone) is outside the test conditions, even well inside depth and time',
+		(temperature) => {
+			const r = assessExposure({ code: 'IP67' }, still({ temperature }));
+			expect(r).toMatchObject({ status: 'outside-test-conditions', reasons: ['temperature'] });
+			expect(r.explanation).toMatch(/more than 5 K warmer than the phone/);
+			expect(r.explanation).toMatch(/within 5 K of the phone’s temperature/);
+		}
+	);
+
+	it.each<['moving' | 'jet', RegExp]>([
+		['moving', /water was moving/],
+		['jet', /under a jet or running water/]
+	])('%s water is outside the test conditions (the specimen is at rest in the test)', (motion, words) => {
+		const r = assessExposure(ip68(6, 30), still({ motion }));
+		expect(r).toMatchObject({ status: 'outside-test-conditions', reasons: ['motion'] });
+		expect(r.explanation).toMatch(words);
+		expect(r.explanation).toMatch(/with the phone at rest/);
+	});
+
+	it('soapy fresh water is outside the test conditions (the test liquid is fresh water)', () => {
+		const r = assessExposure({ code: 'IP67' }, still({ soapy: true }));
+		expect(r).toMatchObject({ status: 'outside-test-conditions', reasons: ['detergent'] });
+		expect(r.explanation).toMatch(/soap or detergent/);
+	});
+
+	it('a washing machine — warm, soapy, moving — lists all three, and a broken limit still wins', () => {
+		const machine = still({ temperature: 'warm', soapy: true, motion: 'moving' });
+		expect(assessExposure({ code: 'IP67' }, machine).reasons).toEqual(['detergent', 'temperature', 'motion']);
+		const deep = assessExposure({ code: 'IP67' }, { ...machine, minutes: 45 });
+		expect(deep).toMatchObject({ status: 'exceeded', reasons: ['duration', 'detergent', 'temperature', 'motion'] });
+	});
+
+	it('soap is not counted twice for a liquid that is already not fresh water', () => {
+		expect(assessExposure({ code: 'IP67' }, still({ liquid: 'salt', soapy: true })).reasons).toEqual(['liquid']);
+	});
+
+	it('undeclared IP68 in hot water is outside the test conditions rather than undetermined', () => {
+		const r = assessExposure({ code: 'IP68' }, still({ temperature: 'hot' }));
+		expect(r).toMatchObject({ status: 'outside-test-conditions', reasons: ['temperature'] });
+	});
+
+	it('jobs taken in before these questions (no temperature, motion or soap) are judged as before', () => {
+		expect(assessExposure({ code: 'IP67' }, fresh(0.5, 5)).status).toBe('within');
+	});
+});
+
+describe('assessExposure — second digit 9 is a jet test, never an immersion rating (IEC 60529 amendment 2, 2013, via trade-reference §9)', () => {
+	it.each<[string]>([['IP69'], ['IPX9'], ['IP69K'], ['ip 69']])('%s submerged → exceeded: no immersion rating', (code) => {
+		const r = assessExposure({ code }, fresh(0.1, 1));
+		expect(r).toMatchObject({ status: 'exceeded', reasons: ['no-immersion-rating'] });
+		expect(r.explanation).toMatch(/second digit 9 is a high-pressure, high-temperature jet test/);
+	});
+
+	it('IP69 ignores a declared depth and time: there is no immersion test to declare them for', () => {
+		const r = assessExposure({ code: 'IP69', declaredDepthM: 6, declaredMinutes: 30 }, fresh(0.1, 1));
+		expect(r.status).toBe('exceeded');
+	});
+
+	it('a dual code IP68/IP69 is judged by its 8', () => {
+		expect(assessExposure({ code: 'IP68/IP69', declaredDepthM: 6, declaredMinutes: 30 }, fresh(1, 5)).status).toBe(
+			'within'
+		);
+	});
+
+	it('IP69 and a splash: no splash test to compare with → undetermined', () => {
+		const r = assessExposure({ code: 'IP69' }, { liquid: 'fresh', submerged: false });
+		expect(r.status).toBe('undetermined');
+		expect(r.explanation).toMatch(/digit 9 is a different test/);
+	});
+});
+
 describe('assessExposure — not submerged (splash or spill)', () => {
 	const splash = (liquid: LiquidKind = 'fresh'): Exposure => ({ liquid, submerged: false });
 
@@ -170,6 +258,27 @@ describe('assessExposure — not submerged (splash or spill)', () => {
 		const r = assessExposure({ code: 'IP68', declaredDepthM: 6, declaredMinutes: 30 }, splash());
 		expect(r.status).toBe('undetermined');
 		expect(r.explanation).toMatch(/do(es)? not say digits 7 and 8 cover splashes/);
+	});
+
+	it('a running tap or jet needs a jet test (digits 5/6, IEC 60529 via trade-reference §1); a splash digit 4 is not enough', () => {
+		const tap: Exposure = { liquid: 'fresh', submerged: false, motion: 'jet', temperature: 'room' };
+		expect(assessExposure({ code: 'IP65/IP68', declaredDepthM: 2, declaredMinutes: 30 }, tap)).toMatchObject({
+			status: 'within'
+		});
+		const r = assessExposure({ code: 'IP54' }, tap);
+		expect(r.status).toBe('undetermined');
+		expect(r.explanation).toMatch(/only a splash test/);
+	});
+
+	it('a splash of hot or soapy water is outside the test conditions', () => {
+		expect(assessExposure({ code: 'IP54' }, { ...splash(), temperature: 'hot' })).toMatchObject({
+			status: 'outside-test-conditions',
+			reasons: ['temperature']
+		});
+		expect(assessExposure({ code: 'IP54' }, { ...splash(), soapy: true })).toMatchObject({
+			status: 'outside-test-conditions',
+			reasons: ['detergent']
+		});
 	});
 
 	it('no rating → undetermined; non-fresh → outside the test conditions', () => {
@@ -195,6 +304,28 @@ describe('assessExposure — properties (fast-check)', () => {
 				}
 			),
 			{ numRuns: 1000 }
+		);
+	});
+});
+
+describe('assessExposure — conditions property (fast-check)', () => {
+	it('an immersion outside the test conditions is never "within", whatever the rating and numbers', () => {
+		fc.assert(
+			fc.property(
+				fc.constantFrom('IP67', 'IPX7', 'IP68', 'IP65/IP68', 'IP54', 'IP69', null),
+				fc.double({ min: 0, max: 10, noNaN: true }),
+				fc.double({ min: 0, max: 120, noNaN: true }),
+				fc.constantFrom<Exposure['temperature']>('room', 'warm', 'hot'),
+				fc.constantFrom<Exposure['motion']>('still', 'moving', 'jet'),
+				fc.boolean(),
+				(code, depthM, minutes, temperature, motion, soapy) => {
+					const rating: DeviceRating = { code, declaredDepthM: 6, declaredMinutes: 30 };
+					const r = assessExposure(rating, { ...fresh(depthM, minutes), temperature, motion, soapy });
+					const outside = temperature !== 'room' || motion !== 'still' || soapy;
+					if (outside) expect(r.status).not.toBe('within');
+				}
+			),
+			{ numRuns: 500 }
 		);
 	});
 });
@@ -236,6 +367,11 @@ describe('zod schemas for forms', () => {
 		expect(exposureSchema.safeParse({ liquid: 'salt', submerged: true, depthM: 0.5 }).success).toBe(true);
 		expect(exposureSchema.safeParse({ liquid: 'seawater', submerged: true }).success).toBe(false);
 		expect(exposureSchema.safeParse({ liquid: 'fresh', submerged: true, minutes: -1 }).success).toBe(false);
+		expect(
+			exposureSchema.safeParse({ liquid: 'fresh', submerged: true, temperature: 'hot', motion: 'jet', soapy: true })
+				.success
+		).toBe(true);
+		expect(exposureSchema.safeParse({ liquid: 'fresh', submerged: true, temperature: 'boiling' }).success).toBe(false);
 	});
 });
 

@@ -5,18 +5,29 @@
  * - second digit 7: temporary immersion, 1 m for 30 min, fresh water;
  * - second digit 8: continuous immersion on terms the maker declares, which must be harsher than 7
  *   (deeper than 1 m and/or longer than 30 min), e.g. "IP68, up to 6 m for 30 min";
- * - digits 7/8 do not imply the splash and jet tests (4–6) unless the code says both ("IP65/IP68").
+ * - digits 7/8 do not imply the splash and jet tests (4–6) unless the code says both ("IP65/IP68");
+ * - the immersion tests use fresh water within 5 K of the phone, the phone at rest (testConditions.ts);
+ * - digit 9 is a high-pressure, high-temperature jet test, never an immersion rating.
  *
  * Our design choices, not the standard's: limits are inclusive; only fresh water counts as the test
- * liquid; a result of "within" never means "undamaged" — seals weaken with age, drops and earlier
+ * liquid; soap, warm water, moving water and jets put an immersion outside the test conditions; a result of "within" never means "undamaged" — seals weaken with age, drops and earlier
  * opening (common practice), so the explanation says so.
  */
 import { z } from 'zod';
 import { parseIpCode, type IpCode } from './ipCode';
 import { liquidKinds, liquidWords, type LiquidKind } from './liquid';
+import {
+	conditionFindings,
+	IMMERSION_CONDITIONS,
+	liquidTemperatures,
+	waterMotions,
+	type LiquidTemperature,
+	type WaterMotion
+} from './testConditions';
 
 export { parseIpCode, type IpCode };
 export { liquidKinds, liquidWords, type LiquidKind };
+export { liquidTemperatures, waterMotions, type LiquidTemperature, type WaterMotion };
 export { urgencyHint, type UrgencyLevel } from './urgency';
 
 export const exposureStatuses = [
@@ -28,7 +39,15 @@ export const exposureStatuses = [
 ] as const;
 export type ExposureStatus = (typeof exposureStatuses)[number];
 
-export const exposureReasons = ['depth', 'duration', 'liquid', 'no-immersion-rating'] as const;
+export const exposureReasons = [
+	'depth',
+	'duration',
+	'liquid',
+	'no-immersion-rating',
+	'temperature',
+	'motion',
+	'detergent'
+] as const;
 export type ExposureReason = (typeof exposureReasons)[number];
 
 /** The device's rated protection. `code: null` (or "none") means the maker claims none. */
@@ -51,7 +70,11 @@ export const exposureSchema = z.object({
 	liquid: z.enum(liquidKinds),
 	submerged: z.boolean(),
 	depthM: z.number().nonnegative().max(1000).optional(),
-	minutes: z.number().nonnegative().max(1_000_000).optional()
+	minutes: z.number().nonnegative().max(1_000_000).optional(),
+	/** Undefined on jobs taken in before intake asked; the assessment then says nothing about it. */
+	temperature: z.enum(liquidTemperatures).optional(),
+	motion: z.enum(waterMotions).optional(),
+	soapy: z.boolean().optional()
 });
 export type Exposure = z.infer<typeof exposureSchema>;
 
@@ -110,9 +133,12 @@ function checkExposureNumbers(exposure: Exposure): void {
 
 /**
  * Compares an exposure with the device's rating. Precedence, most telling first: an invalid rating;
- * a broken limit ("exceeded", which holds whatever the liquid was); a liquid other than fresh water
+ * a broken limit ("exceeded", which holds whatever the conditions were); conditions outside the
+ * immersion test's — not fresh water, soap, warmer than 5 K above the phone, moving water or a jet
  * ("outside-test-conditions"); missing numbers ("undetermined"); otherwise "within".
  * `reasons` lists every finding that applies, so "exceeded" in salt water also carries `liquid`.
+ * A second digit 9 (IP69, IPX9) is a high-pressure, high-temperature jet test, never an immersion
+ * rating (IEC 60529 amendment 2, 2013; via trade-reference §9).
  */
 export function assessExposure(rating: DeviceRating, exposure: Exposure): ExposureAssessment {
 	checkExposureNumbers(exposure);
@@ -132,28 +158,33 @@ export function assessExposure(rating: DeviceRating, exposure: Exposure): Exposu
 			explanation: `The rating cannot be right: ${limits.why}.`
 		};
 	}
-	const freshWater = exposure.liquid === 'fresh';
-	const liquidNote = freshWater
-		? ''
-		: ` The liquid was ${liquidWords[exposure.liquid]}; IP tests use fresh water only, so the rating says nothing about it.`;
-	const liquidReason: ExposureReason[] = freshWater ? [] : ['liquid'];
 
-	if (!exposure.submerged) return assessSplash(ip, freshWater, liquidNote);
+	if (!exposure.submerged) return assessSplash(ip, exposure);
+
+	const conditions = conditionFindings(exposure, true);
+	const outside: ExposureReason[] = conditions.reasons;
+	const conditionNote = outside.length
+		? ` Outside the test conditions: ${conditions.words.join('; ')}. ${IMMERSION_CONDITIONS}, so the rating says nothing about this.`
+		: '';
 
 	if (limits.kind === 'none') {
 		const rated =
-			ip === null ? 'The phone has no IP rating' : `${ip.code} has no immersion rating (second digit 7 or 8)`;
+			ip === null
+				? 'The phone has no IP rating'
+				: ip.water.includes(9)
+					? `${ip.code} has no immersion rating: second digit 9 is a high-pressure, high-temperature jet test (added by amendment 2, 2013), not an immersion test`
+					: `${ip.code} has no immersion rating (second digit 7 or 8)`;
 		return {
 			status: 'exceeded',
-			reasons: ['no-immersion-rating', ...liquidReason],
-			explanation: `${rated}, and it was submerged: expect liquid inside.${liquidNote}`
+			reasons: ['no-immersion-rating', ...outside],
+			explanation: `${rated}, and it was submerged: expect liquid inside.${conditionNote}`
 		};
 	}
 	if (limits.kind === 'undeclared') {
 		const missing = `${limits.code} is only meaningful with the maker's declared depth and minutes, which are missing; look them up for this model.`;
-		return freshWater
+		return outside.length === 0
 			? { status: 'undetermined', reasons: [], explanation: missing }
-			: { status: 'outside-test-conditions', reasons: ['liquid'], explanation: `${missing}${liquidNote}` };
+			: { status: 'outside-test-conditions', reasons: outside, explanation: `${missing}${conditionNote}` };
 	}
 
 	const { depthM, minutes } = exposure;
@@ -170,19 +201,19 @@ export function assessExposure(rating: DeviceRating, exposure: Exposure): Exposu
 	if (over.length > 0) {
 		return {
 			status: 'exceeded',
-			reasons: [...over, ...liquidReason],
-			explanation: `Beyond the rated test of ${limits.label}: ${words.join(' and ')}. Expect liquid inside.${liquidNote}`
+			reasons: [...over, ...outside],
+			explanation: `Beyond the rated test of ${limits.label}: ${words.join(' and ')}. Expect liquid inside.${conditionNote}`
 		};
 	}
-	if (!freshWater) {
+	if (outside.length > 0) {
 		const compared =
 			depthM !== undefined && minutes !== undefined
 				? `Depth and time are within ${limits.label}.`
 				: `Depth or time is not known, so it was not compared with ${limits.label}.`;
 		return {
 			status: 'outside-test-conditions',
-			reasons: ['liquid'],
-			explanation: `${compared}${liquidNote}`
+			reasons: outside,
+			explanation: `${compared}${conditionNote} Treat it as if the rating did not apply: open and inspect.`
 		};
 	}
 	if (depthM === undefined || minutes === undefined) {
@@ -198,29 +229,45 @@ export function assessExposure(rating: DeviceRating, exposure: Exposure): Exposu
 	return {
 		status: 'within',
 		reasons: [],
-		explanation: `Within the rated test of ${limits.label}: ${num(depthM)} m for ${num(minutes)} min in fresh water. ${SEALS_CAVEAT}`
+		explanation: `Within the rated test of ${limits.label}: ${num(depthM)} m for ${num(minutes)} min in ${conditions.inside}. ${SEALS_CAVEAT}`
 	};
 }
 
-/** Splashes and spills: immersion limits do not apply; digits 4–6 are the tests that come closest. */
-function assessSplash(ip: IpCode | null, freshWater: boolean, liquidNote: string): ExposureAssessment {
-	const lead = 'Not submerged (a splash or spill), so the immersion limits do not apply.';
-	if (!freshWater) {
-		return { status: 'outside-test-conditions', reasons: ['liquid'], explanation: `${lead}${liquidNote}` };
+/**
+ * Splashes and spills: immersion limits do not apply; digits 4–6 are the tests that come closest.
+ * A spill needs a splash or jet digit (4–6); running water, a jet or waves need a jet digit (5–6).
+ */
+function assessSplash(ip: IpCode | null, exposure: Exposure): ExposureAssessment {
+	const jetLike = exposure.motion === 'jet' || exposure.motion === 'moving';
+	const lead = jetLike
+		? 'Not submerged, but under running water, a jet or waves, so the immersion limits do not apply.'
+		: 'Not submerged (a splash or spill), so the immersion limits do not apply.';
+	const conditions = conditionFindings(exposure, false);
+	if (conditions.reasons.length) {
+		return {
+			status: 'outside-test-conditions',
+			reasons: conditions.reasons,
+			explanation: `${lead} Outside the test conditions: ${conditions.words.join('; ')}. IEC 60529 tests with fresh water (for the immersion tests, within 5 K of the phone; clause from memory), so the rating says nothing about this. Open and inspect.`
+		};
 	}
-	const splashDigit = ip?.water.find((digit) => digit >= 4 && digit <= 6);
-	if (ip && splashDigit !== undefined) {
+	const testDigit = ip?.water.find((digit) => digit >= (jetLike ? 5 : 4) && digit <= 6);
+	if (ip && testDigit !== undefined) {
+		const test = testDigit === 4 ? 'a splash test' : 'a jet test';
 		return {
 			status: 'within',
 			reasons: [],
-			explanation: `${lead} ${ip.code} includes a splash or jet test (second digit ${splashDigit}) in fresh water. ${SEALS_CAVEAT}`
+			explanation: `${lead} ${ip.code} includes ${test} (second digit ${testDigit}) in fresh water. ${SEALS_CAVEAT}`
 		};
 	}
 	const why =
 		ip === null
 			? 'The phone has no IP rating.'
-			: ip.immersion !== null
-				? `${ip.code} is an immersion rating; IEC 60529 does not say digits 7 and 8 cover splashes or jets.`
-				: `${ip.code} does not include a splash test (second digit 4 to 6).`;
+			: ip.water.includes(9)
+				? `${ip.code} names no splash or ordinary jet test (second digit 4 to 6); digit 9 is a different test, a high-pressure, high-temperature jet.`
+				: ip.immersion !== null
+					? `${ip.code} is an immersion rating; IEC 60529 does not say digits 7 and 8 cover splashes or jets.`
+					: jetLike && ip.water.includes(4)
+						? `${ip.code} includes only a splash test (second digit 4), not a jet test (5 or 6).`
+						: `${ip.code} does not include a splash test (second digit 4 to 6).`;
 	return { status: 'undetermined', reasons: [], explanation: `${lead} ${why} Open and inspect.` };
 }
