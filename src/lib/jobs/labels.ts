@@ -13,7 +13,10 @@ export const exposureReasonLabels: Record<ExposureReason, string> = {
 	depth: 'too deep',
 	duration: 'too long',
 	liquid: 'not fresh water',
-	'no-immersion-rating': 'no immersion rating'
+	'no-immersion-rating': 'no immersion rating',
+	temperature: 'warmer than the phone',
+	motion: 'moving water or a jet',
+	detergent: 'soap or detergent'
 };
 
 export const urgencyLabels: Record<UrgencyLevel, string> = {

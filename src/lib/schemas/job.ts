@@ -7,7 +7,9 @@ import { z } from 'zod';
 import {
 	assessExposure,
 	liquidKinds,
+	liquidTemperatures,
 	parseIpCode,
+	waterMotions,
 	type DeviceRating,
 	type Exposure
 } from '$lib/domain/exposure';
@@ -30,6 +32,28 @@ export const liquidLabels: Record<(typeof liquidKinds)[number], string> = {
 	sugary: 'Sugary drink',
 	other: 'Other liquid',
 	unknown: 'Unknown'
+};
+
+/** Short answers for the intake's test-condition questions (IEC 60529: within 5 K, at rest). */
+export const temperatureLabels: Record<(typeof liquidTemperatures)[number], string> = {
+	room: 'Cold or room',
+	warm: 'Warm',
+	hot: 'Hot'
+};
+export const temperatureHints: Record<(typeof liquidTemperatures)[number], string> = {
+	room: 'tap, rain, a glass of water',
+	warm: 'bath, hot tub, washing machine',
+	hot: 'hot drink, kettle, dishwasher'
+};
+export const motionLabels: Record<(typeof waterMotions)[number], string> = {
+	still: 'Still',
+	moving: 'Moving',
+	jet: 'Jet or running tap'
+};
+export const motionHints: Record<(typeof waterMotions)[number], string> = {
+	still: 'dropped in, spilled',
+	moving: 'swimming, waves, washing machine',
+	jet: 'under a tap, shower or hose'
 };
 
 /** "no-power" → "No power": symptom tags are kebab-case ids from the flows. */
@@ -104,6 +128,11 @@ const intakeShape = {
 	/** The browser's Date#getTimezoneOffset() for a zone-less exposedAt; 0 (UTC) when absent. */
 	tzOffsetMin: z.number().int().min(-840).max(840).default(0),
 	submerged: z.boolean().default(false),
+	// Defaults are the commonest answers, so a quick intake taps nothing; the verdict names them.
+	liquidTemperature: z.enum(liquidTemperatures, { error: 'Choose how warm the liquid was.' }).default('room'),
+	waterMotion: z.enum(waterMotions, { error: 'Choose whether the water was still or moving.' }).default('still'),
+	/** Only asked for fresh water: any other liquid is already outside the test conditions. */
+	soapy: z.boolean().default(false),
 	depthM: optionalNumber(1000, 'depth in metres'),
 	minutes: optionalNumber(100_000, 'time in minutes'),
 	ratingCode: z.string().trim().max(40).default(''),
@@ -132,10 +161,22 @@ export function ratingOf(
 	};
 }
 
-export function exposureOf(v: Pick<IntakeShape, 'liquid' | 'submerged' | 'depthM' | 'minutes'>): Exposure {
+export function exposureOf(
+	v: Pick<
+		IntakeShape,
+		'liquid' | 'submerged' | 'depthM' | 'minutes' | 'liquidTemperature' | 'waterMotion' | 'soapy'
+	>
+): Exposure {
+	const liquid = v.liquid ?? 'unknown';
+	const conditions = {
+		temperature: v.liquidTemperature,
+		motion: v.waterMotion,
+		// A soap tick left over from an earlier "fresh water" choice must not follow another liquid.
+		soapy: liquid === 'fresh' ? v.soapy : false
+	};
 	return v.submerged
-		? { liquid: v.liquid ?? 'unknown', submerged: true, depthM: v.depthM, minutes: v.minutes }
-		: { liquid: v.liquid ?? 'unknown', submerged: false };
+		? { liquid, submerged: true, depthM: v.depthM, minutes: v.minutes, ...conditions }
+		: { liquid, submerged: false, ...conditions };
 }
 
 /** The exposure time as an instant, or null when unknown. */

@@ -81,4 +81,40 @@ describe('ExposurePanel', () => {
 		});
 		expect(screen.getByText(/Enter the depth and time as numbers/)).toBeInTheDocument();
 	});
+
+	it('explains in words why warm, moving water is outside the test conditions (IEC 60529 digit 7/8: within 5 K, at rest)', () => {
+		render(ExposurePanel, {
+			rating: { code: 'IP67' },
+			exposure: {
+				liquid: 'fresh',
+				submerged: true,
+				depthM: 0.5,
+				minutes: 5,
+				temperature: 'warm',
+				motion: 'moving',
+				soapy: false
+			},
+			exposedAt: null,
+			now
+		});
+		expect(screen.getByText('Outside the test conditions').closest('[data-status]')).toHaveAttribute(
+			'data-status',
+			'outside-test-conditions'
+		);
+		const why = screen.getByRole('list', { name: 'Why' });
+		expect(why).toHaveTextContent('warmer than the phone');
+		expect(why).toHaveTextContent('moving water or a jet');
+		expect(screen.getByText(/more than 5 K warmer than the phone/)).toBeInTheDocument();
+	});
+
+	it('says an IP69 is a jet test, not an immersion rating', () => {
+		render(ExposurePanel, {
+			rating: { code: 'IP69' },
+			exposure: { liquid: 'fresh', submerged: true, depthM: 0.2, minutes: 1 },
+			exposedAt: null,
+			now
+		});
+		expect(screen.getByText('Beyond the rating')).toBeInTheDocument();
+		expect(screen.getByText(/second digit 9 is a high-pressure, high-temperature jet test/)).toBeInTheDocument();
+	});
 });

@@ -19,6 +19,9 @@ const base = {
 	declaredMinutes: undefined,
 	depthM: undefined,
 	minutes: undefined,
+	liquidTemperature: 'room',
+	waterMotion: 'still',
+	soapy: false,
 	customerEmail: '',
 	customerPhone: '',
 	dataFirst: false,
@@ -99,9 +102,11 @@ export function demoJobs(): JobIntake[] {
 			submerged: true,
 			depthM: 2,
 			minutes: 5,
+			waterMotion: 'moving',
 			ratingCode: '',
 			passcodeStatus: 'given',
-			consentToOpen: true
+			consentToOpen: true,
+			notes: 'In a trouser pocket while swimming laps.'
 		}
 	];
 }

@@ -84,6 +84,43 @@ describe('job intake', () => {
 		expect(audit.map((a) => a.action)).toEqual(['job.create']);
 	});
 
+	it('stores the test-condition answers and judges a warm, soapy, moving immersion outside the test conditions', async () => {
+		const job = await jobs.create(
+			techId,
+			intake({
+				imei: imei('00110000000019'),
+				ratingCode: 'IP67',
+				submerged: true,
+				depthM: 0.3,
+				minutes: 5,
+				liquidTemperature: 'warm',
+				waterMotion: 'moving',
+				soapy: true
+			})
+		);
+		const [row] = await (await getDb()).select().from(jobsTable).where(eq(jobsTable.id, job.id));
+		expect(row).toMatchObject({ liquidTemperature: 'warm', waterMotion: 'moving', soapy: true });
+		// IEC 60529 digit 7: fresh water within 5 K of the specimen, specimen at rest (trade-reference §9).
+		expect(row.exposureAssessment).toMatchObject({
+			status: 'outside-test-conditions',
+			reasons: ['detergent', 'temperature', 'motion']
+		});
+	});
+
+	it('defaults the test conditions to still water at room temperature, and drops soap for a liquid other than fresh water', async () => {
+		const job = await jobs.create(
+			techId,
+			intake({ imei: imei('00110000000027'), liquid: 'salt', soapy: true, ratingCode: 'IP69' })
+		);
+		expect(job).toMatchObject({ liquidTemperature: 'room', waterMotion: 'still', soapy: false });
+		const deep = await jobs.create(
+			techId,
+			intake({ imei: imei('00110000000035'), ratingCode: 'IP69', submerged: true, depthM: 0.2, minutes: 1 })
+		);
+		// Second digit 9 is a jet test, never an immersion rating (IEC 60529 amendment 2, via trade-reference §9).
+		expect(deep.exposureAssessment).toMatchObject({ status: 'exceeded', reasons: ['no-immersion-rating'] });
+	});
+
 	it('numbers jobs from a sequence, one up each time', async () => {
 		const a = await jobs.create(techId, intake());
 		const b = await jobs.create(techId, intake());

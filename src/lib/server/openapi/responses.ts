@@ -5,7 +5,13 @@
  * $lib/schemas/run.)
  */
 import { z } from 'zod';
-import { exposureReasons, exposureStatuses, liquidKinds } from '$lib/domain/exposure';
+import {
+	exposureReasons,
+	exposureStatuses,
+	liquidKinds,
+	liquidTemperatures,
+	waterMotions
+} from '$lib/domain/exposure';
 import { jobStatuses } from '$lib/domain/jobStatus';
 import { passcodeStatuses } from '$lib/schemas/job';
 import { photoSources, type PhotoDto } from '$lib/photos/limits';
@@ -74,6 +80,12 @@ export const jobDetail = z
 		submerged: z.boolean(),
 		depthM: z.number().nullable(),
 		minutes: z.number().nullable(),
+		liquidTemperature: z
+			.enum(liquidTemperatures)
+			.nullable()
+			.meta({ description: 'Against the phone: warm and hot are more than 5 K warmer. Null: not asked.' }),
+		waterMotion: z.enum(waterMotions).nullable().meta({ description: 'Null: not asked.' }),
+		soapy: z.boolean().nullable().meta({ description: 'Soap or detergent in fresh water. Null: not asked.' }),
 		rating: z.object({
 			code: z.string().nullable(),
 			declaredDepthM: z.number().optional(),

@@ -16,7 +16,12 @@ import {
 	uuid
 } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
-import { liquidKinds, type ExposureAssessment } from '../../../domain/exposure';
+import {
+	liquidKinds,
+	liquidTemperatures,
+	waterMotions,
+	type ExposureAssessment
+} from '../../../domain/exposure';
 import { jobStatuses } from '../../../domain/jobStatus';
 import { users } from './users';
 
@@ -44,6 +49,9 @@ export const customers = pgTable(
 );
 
 export const liquidKind = pgEnum('liquid_kind', liquidKinds);
+/** How warm the liquid was against the phone, and whether it moved: IEC 60529's test conditions. */
+export const liquidTemperature = pgEnum('liquid_temperature', liquidTemperatures);
+export const waterMotion = pgEnum('water_motion', waterMotions);
 export const passcodeStatuses = ['given', 'withheld', 'not-needed'] as const;
 /** Whether the customer gave the passcode. The passcode itself is never stored anywhere. */
 export const passcodeStatus = pgEnum('passcode_status', passcodeStatuses);
@@ -78,6 +86,11 @@ export const jobs = pgTable(
 		submerged: boolean('submerged').notNull(),
 		depthM: real('depth_m'),
 		minutes: real('minutes'),
+		/** Null on jobs taken in before intake asked (the assessment then said nothing about them). */
+		liquidTemperature: liquidTemperature('liquid_temperature'),
+		waterMotion: waterMotion('water_motion'),
+		/** Soap or detergent in fresh water; null when not asked. */
+		soapy: boolean('soapy'),
 		rating: jsonb('rating').$type<StoredRating>().notNull(),
 		/** assessExposure's result at intake, kept so the job shows what the technician was told. */
 		exposureAssessment: jsonb('exposure_assessment').$type<ExposureAssessment>().notNull(),
