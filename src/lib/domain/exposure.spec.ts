@@ -198,11 +198,16 @@ describe('assessExposure — test conditions of the immersion tests (IEC 60529 d
 		const machine = still({ temperature: 'warm', soapy: true, motion: 'moving' });
 		expect(assessExposure({ code: 'IP67' }, machine).reasons).toEqual(['detergent', 'temperature', 'motion']);
 		const deep = assessExposure({ code: 'IP67' }, { ...machine, minutes: 45 });
-		expect(deep).toMatchObject({ status: 'exceeded', reasons: ['duration', 'detergent', 'temperature', 'motion'] });
+		expect(deep).toMatchObject({
+			status: 'exceeded',
+			reasons: ['duration', 'detergent', 'temperature', 'motion']
+		});
 	});
 
 	it('soap is not counted twice for a liquid that is already not fresh water', () => {
-		expect(assessExposure({ code: 'IP67' }, still({ liquid: 'salt', soapy: true })).reasons).toEqual(['liquid']);
+		expect(assessExposure({ code: 'IP67' }, still({ liquid: 'salt', soapy: true })).reasons).toEqual([
+			'liquid'
+		]);
 	});
 
 	it('undeclared IP68 in hot water is outside the test conditions rather than undetermined', () => {
@@ -216,11 +221,14 @@ describe('assessExposure — test conditions of the immersion tests (IEC 60529 d
 });
 
 describe('assessExposure — second digit 9 is a jet test, never an immersion rating (IEC 60529 amendment 2, 2013, via trade-reference §9)', () => {
-	it.each<[string]>([['IP69'], ['IPX9'], ['IP69K'], ['ip 69']])('%s submerged → exceeded: no immersion rating', (code) => {
-		const r = assessExposure({ code }, fresh(0.1, 1));
-		expect(r).toMatchObject({ status: 'exceeded', reasons: ['no-immersion-rating'] });
-		expect(r.explanation).toMatch(/second digit 9 is a high-pressure, high-temperature jet test/);
-	});
+	it.each<[string]>([['IP69'], ['IPX9'], ['IP69K'], ['ip 69']])(
+		'%s submerged → exceeded: no immersion rating',
+		(code) => {
+			const r = assessExposure({ code }, fresh(0.1, 1));
+			expect(r).toMatchObject({ status: 'exceeded', reasons: ['no-immersion-rating'] });
+			expect(r.explanation).toMatch(/second digit 9 is a high-pressure, high-temperature jet test/);
+		}
+	);
 
 	it('IP69 ignores a declared depth and time: there is no immersion test to declare them for', () => {
 		const r = assessExposure({ code: 'IP69', declaredDepthM: 6, declaredMinutes: 30 }, fresh(0.1, 1));
@@ -228,9 +236,9 @@ describe('assessExposure — second digit 9 is a jet test, never an immersion ra
 	});
 
 	it('a dual code IP68/IP69 is judged by its 8', () => {
-		expect(assessExposure({ code: 'IP68/IP69', declaredDepthM: 6, declaredMinutes: 30 }, fresh(1, 5)).status).toBe(
-			'within'
-		);
+		expect(
+			assessExposure({ code: 'IP68/IP69', declaredDepthM: 6, declaredMinutes: 30 }, fresh(1, 5)).status
+		).toBe('within');
 	});
 
 	it('IP69 and a splash: no splash test to compare with → undetermined', () => {
@@ -368,10 +376,17 @@ describe('zod schemas for forms', () => {
 		expect(exposureSchema.safeParse({ liquid: 'seawater', submerged: true }).success).toBe(false);
 		expect(exposureSchema.safeParse({ liquid: 'fresh', submerged: true, minutes: -1 }).success).toBe(false);
 		expect(
-			exposureSchema.safeParse({ liquid: 'fresh', submerged: true, temperature: 'hot', motion: 'jet', soapy: true })
-				.success
+			exposureSchema.safeParse({
+				liquid: 'fresh',
+				submerged: true,
+				temperature: 'hot',
+				motion: 'jet',
+				soapy: true
+			}).success
 		).toBe(true);
-		expect(exposureSchema.safeParse({ liquid: 'fresh', submerged: true, temperature: 'boiling' }).success).toBe(false);
+		expect(
+			exposureSchema.safeParse({ liquid: 'fresh', submerged: true, temperature: 'boiling' }).success
+		).toBe(false);
 	});
 });
 

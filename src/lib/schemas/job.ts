@@ -130,7 +130,9 @@ const intakeShape = {
 	submerged: z.boolean().default(false),
 	// Defaults are the commonest answers, so a quick intake taps nothing; the verdict names them.
 	liquidTemperature: z.enum(liquidTemperatures, { error: 'Choose how warm the liquid was.' }).default('room'),
-	waterMotion: z.enum(waterMotions, { error: 'Choose whether the water was still or moving.' }).default('still'),
+	waterMotion: z
+		.enum(waterMotions, { error: 'Choose whether the water was still or moving.' })
+		.default('still'),
 	/** Only asked for fresh water: any other liquid is already outside the test conditions. */
 	soapy: z.boolean().default(false),
 	depthM: optionalNumber(1000, 'depth in metres'),

@@ -9,7 +9,8 @@ describe('ExposureConditions', () => {
 		expect(screen.getByRole('radio', { name: /Cold or room/ })).toBeChecked();
 		expect(screen.getByRole('radio', { name: /^Still/ })).toBeChecked();
 		expect(screen.getByRole('checkbox', { name: /Soap or detergent/ })).not.toBeChecked();
-		for (const radio of screen.getAllByRole('radio')) expect(radio.closest('label')).toHaveClass('min-h-touch');
+		for (const radio of screen.getAllByRole('radio'))
+			expect(radio.closest('label')).toHaveClass('min-h-touch');
 	});
 
 	it('sends the form names the intake schema reads', async () => {

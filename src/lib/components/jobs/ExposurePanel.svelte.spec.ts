@@ -115,6 +115,8 @@ describe('ExposurePanel', () => {
 			now
 		});
 		expect(screen.getByText('Beyond the rating')).toBeInTheDocument();
-		expect(screen.getByText(/second digit 9 is a high-pressure, high-temperature jet test/)).toBeInTheDocument();
+		expect(
+			screen.getByText(/second digit 9 is a high-pressure, high-temperature jet test/)
+		).toBeInTheDocument();
 	});
 });

@@ -137,6 +137,33 @@ describe('POST /api/jobs', () => {
 		expect(detail.exposureAssessment.status).toBe('undetermined');
 	});
 
+	it('takes the test-condition answers: a hot jet is outside the test conditions; an unknown band is a 400', async () => {
+		const res = await createJob(
+			event(
+				'/api/jobs',
+				json({
+					...valid,
+					customerName: 'Ines Quarrow',
+					liquidTemperature: 'hot',
+					waterMotion: 'jet',
+					soapy: false
+				})
+			)
+		);
+		expect(res.status).toBe(201);
+		const { id } = (await res.json()) as JobCreatedResponse;
+		const detail = (await (await getJob(event(`/api/jobs/${id}`, { params: { id } }))).json()) as JobResponse;
+		expect(detail).toMatchObject({ liquidTemperature: 'hot', waterMotion: 'jet', soapy: false });
+		// IEC 60529 digits 7/8: fresh water within 5 K of the specimen, specimen at rest (trade-reference §9).
+		expect(detail.exposureAssessment).toMatchObject({
+			status: 'outside-test-conditions',
+			reasons: ['temperature', 'motion']
+		});
+		const bad = await createJob(event('/api/jobs', json({ ...valid, liquidTemperature: 'boiling' })));
+		expect(bad.status).toBe(400);
+		expect(((await bad.json()) as { issues: { path: string }[] }).issues[0].path).toBe('liquidTemperature');
+	});
+
 	it('refuses a signed-out caller with 401', async () => {
 		expect(await errorStatus(() => createJob(event('/api/jobs', { ...json(valid), user: null })))).toBe(401);
 		expect(await errorStatus(() => listJobs(event('/api/jobs', { user: null })))).toBe(401);
