@@ -24,6 +24,10 @@ function readJson(file) {
 	}
 }
 
+// 0. Generate .svelte-kit/tsconfig.json (and the route types) first: tsconfig.json extends it, and
+// without it every vitest project starts with a "Cannot find base config file" warning.
+if (run('svelte-kit sync', 'npx', ['svelte-kit', 'sync']) !== 0) broken = true;
+
 // 1. vitest: server and component projects.
 const vitestJson = path.join(out, 'vitest.json');
 const vitestStatus = run('unit and component tests (vitest)', 'npx', [

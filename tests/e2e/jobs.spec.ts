@@ -66,6 +66,49 @@ test('a technician takes in a phone, finds it in the list and moves it along', a
 	await expect(page.getByRole('button', { name: 'Move to Awaiting approval' })).toBeVisible();
 });
 
+test('intake asks how warm and how still the water was, judges it against the IP test conditions and keeps the answers', async ({
+	page
+}) => {
+	const customer = `Pell Drumquist ${Date.now() % 100000}`;
+	const imeiBody = '00551234567891';
+	await signIn(page, 'tech', '/jobs/new');
+	await page.getByLabel('Name', { exact: true }).fill(customer);
+	await page.getByLabel('Phone', { exact: true }).fill('+44 20 7946 0124');
+	await page.getByLabel('Maker', { exact: true }).fill('Corvana');
+	await page.getByLabel('Model', { exact: true }).fill('Tern 6');
+	await page.getByLabel('IMEI', { exact: true }).fill(`${imeiBody}${imeiCheckDigit(imeiBody)}`);
+	await page.getByLabel('Liquid').selectOption('fresh');
+	await page.getByLabel('It was submerged').check();
+	await page.getByLabel('About how deep').fill('0.5');
+	await page.getByLabel('About how long').fill('5');
+	await page.getByLabel('Rated protection').fill('IP67');
+	await page.getByLabel('Not needed').check();
+
+	// Defaults (still water at room temperature): within IP67's 1 m / 30 min (IEC 60529 digit 7).
+	const panel = page.getByTestId('exposure-panel');
+	await expect(panel).toContainText('Within the rating');
+	await expect(panel).toContainText('still fresh water near the phone’s temperature');
+
+	// Warm water is more than 5 K warmer than the phone: outside the test conditions.
+	await page.getByRole('radio', { name: /^Warm/ }).check();
+	await expect(panel).toContainText('Outside the test conditions');
+	await expect(panel).toContainText('warmer than the phone');
+	await page.getByRole('radio', { name: /Jet or running tap/ }).check();
+	await page.getByRole('checkbox', { name: /Soap or detergent/ }).check();
+	await expect(panel).toContainText('moving water or a jet');
+	await expect(panel).toContainText('soap or detergent');
+
+	// IP69 is a jet test, never an immersion rating.
+	await page.getByLabel('Rated protection').fill('IP69');
+	await expect(panel).toContainText('Beyond the rating');
+	await expect(panel).toContainText('second digit 9 is a high-pressure, high-temperature jet test');
+
+	await page.getByRole('button', { name: 'Save the job' }).click();
+	await expect(page).toHaveURL(/\/jobs\/[0-9a-f-]{36}/);
+	await expect(page.getByTestId('intake-conditions')).toHaveText('Warm, jet or running tap, with soap or detergent');
+	await expect(page.getByTestId('exposure-panel')).toContainText('no immersion rating');
+});
+
 test('the job list filters by status and sorts, keeping both in the URL', async ({ page }) => {
 	await signIn(page, 'tech', '/jobs');
 	await page.getByLabel('Status').selectOption('diagnosing');

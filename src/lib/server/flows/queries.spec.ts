@@ -156,7 +156,7 @@ describe('import of flow files', () => {
 describe('the library', () => {
 	it('hides drafts and unpublished flows from technicians and counts them for seniors', async () => {
 		const author = await staff.create(null, {
-			name: 'Wren Adler',
+			name: 'Wren Addlestow',
 			email: 'wren@shop.test',
 			role: 'senior',
 			password: 'wren-password-1'
@@ -193,7 +193,7 @@ describe('the library', () => {
 		expect((await library.openDrafts('face-unlock-after-liquid'))[0]).toMatchObject({
 			version: null,
 			status: 'draft',
-			authorName: 'Wren Adler'
+			authorName: 'Wren Addlestow'
 		});
 	});
 

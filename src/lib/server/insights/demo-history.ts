@@ -30,7 +30,7 @@ export const historyTechnicians = [
 	{ name: 'Kasimir Lund', email: 'kasimir@tidemark.test' },
 	{ name: 'Priya Ostrander', email: 'priya@tidemark.test' },
 	{ name: 'Elodie Marchetti', email: 'elodie@tidemark.test' },
-	{ name: 'Bartholomew Achebe', email: 'bart@tidemark.test' },
+	{ name: 'Bartholomew Quennock', email: 'bart@tidemark.test' },
 	{ name: 'Saoirse Kettle', email: 'saoirse@tidemark.test' }
 ];
 
@@ -55,7 +55,7 @@ const firstNames = [
 const lastNames = [
 	'Ashgrove',
 	'Brindle',
-	'Copperfield',
+	'Copperdell',
 	'Dunmore',
 	'Ellwood',
 	'Fairweather',

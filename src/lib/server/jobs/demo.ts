@@ -34,7 +34,7 @@ export function demoJobs(): JobIntake[] {
 	return [
 		{
 			...base,
-			customerName: 'Marit Okonkwo-Hale',
+			customerName: 'Marit Ombrevik-Hale',
 			customerEmail: 'marit@example.test',
 			maker: 'Corvana',
 			model: 'Tern 6 Pro',
@@ -91,8 +91,8 @@ export function demoJobs(): JobIntake[] {
 		},
 		{
 			...base,
-			customerName: 'Teodor Vance',
-			customerEmail: 'teo.vance@example.test',
+			customerName: 'Teodor Wrenfield',
+			customerEmail: 'teo.wrenfield@example.test',
 			maker: 'Corvana',
 			model: 'Tern 5',
 			imei: imei('00440305550123'),

@@ -35,7 +35,8 @@ describe('templates', () => {
 		jobNumber: 'J-0042',
 		device: `Corvana Tern 6 Pro "blue"`,
 		reportUrl: 'https://shop.example.test/r/abc?x=1&y=2',
-		expiresAt: new Date('2026-12-16T12:00:00Z')
+		expiresAt: new Date('2026-12-16T12:00:00Z'),
+		has: { findings: true, photos: true, quote: true }
 	});
 
 	it('shows typed values as text in the HTML, never as markup', () => {
@@ -56,6 +57,51 @@ describe('templates', () => {
 		expect(report.subject).toBe('Your Corvana Tern 6 Pro "blue" — findings and quote (job J-0042)');
 	});
 
+	it('promises only what the page holds: before findings or a quote, "received and being examined" with the link', () => {
+		const early = reportReady({
+			shop,
+			customerName: 'Ebba',
+			jobNumber: 'TM-000007',
+			device: 'Corvana Tern 6',
+			reportUrl: 'https://shop.example.test/r/early',
+			expiresAt: new Date('2026-12-16T12:00:00Z'),
+			has: { findings: false, photos: false, quote: false }
+		});
+		expect(early.subject).toBe('Your Corvana Tern 6 — received and being examined (job TM-000007)');
+		expect(early.text).toContain(
+			'We have received your Corvana Tern 6 (job TM-000007) and are examining it.'
+		);
+		expect(early.text).toContain('\nhttps://shop.example.test/r/early\n');
+		expect(early.text).toContain('We will write again when we have findings and a price.');
+		for (const part of [early.text, parse(early.html).text]) {
+			expect(part).not.toMatch(/our findings|the photos|the price are|approve the quote|pay/);
+		}
+		expect(parse(early.html).text).toContain('See where the job stands');
+	});
+
+	it('names the findings and photos when there are some, and says the price follows', () => {
+		const m = reportReady({
+			shop,
+			customerName: 'Ebba',
+			jobNumber: 'TM-000007',
+			device: 'Corvana Tern 6',
+			reportUrl: 'https://shop.example.test/r/found',
+			expiresAt: new Date('2026-12-16T12:00:00Z'),
+			has: { findings: true, photos: true, quote: false }
+		});
+		expect(m.subject).toBe('Your Corvana Tern 6 — findings (job TM-000007)');
+		expect(m.text).toContain(
+			'Our findings and the photos are on this private page. We will write again when we have a price.'
+		);
+		expect(m.text).not.toMatch(/approve the quote/);
+	});
+
+	it('the full report names findings, photos and price, and where to approve and pay', () => {
+		expect(report.text).toContain(
+			'Our findings, the photos and the repair we propose with its price are on this private page, where you can also approve the quote and pay.'
+		);
+	});
+
 	it('refuses a link that is not http(s)', () => {
 		expect(() => safeHref('javascript:alert(1)')).toThrow('Refusing a javascript: link');
 		expect(() =>
@@ -65,7 +111,8 @@ describe('templates', () => {
 				jobNumber: '1',
 				device: 'D',
 				reportUrl: 'data:text/html,x',
-				expiresAt: new Date()
+				expiresAt: new Date(),
+				has: { findings: false, photos: false, quote: false }
 			})
 		).toThrow();
 	});

@@ -82,15 +82,58 @@ export type ReportReadyData = {
 	device: string;
 	reportUrl: string;
 	expiresAt: Date;
+	/** What the linked page holds right now: the mail promises nothing more. */
+	has: { findings: boolean; photos: boolean; quote: boolean };
 };
 
-/** The findings report is ready: a private link to read it, approve the quote and pay. */
+/** "a, b and c". */
+const listed = (items: string[]) =>
+	items.length < 2 ? (items[0] ?? '') : `${items.slice(0, -1).join(', ')} and ${items.at(-1)}`;
+
+/**
+ * The private link to the job's report. It says what the page holds at the moment it is sent: before
+ * there are findings or a quote, only that the phone was received and is being examined.
+ */
 export function reportReady(d: ReportReadyData): RenderedMail {
-	const subject = oneLine(`Your ${d.device} — findings and quote (job ${d.jobNumber})`);
+	const { findings, photos, quote } = d.has;
+	const parts = [
+		findings && 'our findings',
+		photos && 'the photos',
+		quote && 'the repair we propose with its price'
+	].filter((x): x is string => Boolean(x));
+	const what =
+		findings && quote
+			? 'findings and quote'
+			: findings
+				? 'findings'
+				: quote
+					? 'quote'
+					: 'received and being examined';
+	const subject = oneLine(`Your ${d.device} — ${what} (job ${d.jobNumber})`);
 	const until = formatDate(d.expiresAt, d.shop);
+	const intro = (device: string, job: string) => {
+		const said = [
+			findings
+				? `We have examined your ${device} (job ${job}).`
+				: `We have received your ${device} (job ${job}) and are examining it.`
+		];
+		if (parts.length === 0) {
+			said.push(
+				'This private page shows what you told us when you handed it in and where the job stands. We will write again when we have findings and a price.'
+			);
+		} else {
+			const list = listed(parts);
+			said.push(
+				`${list[0].toUpperCase()}${list.slice(1)} ${parts.length === 1 ? 'is' : 'are'} on this private page${quote ? ', where you can also approve the quote and pay' : ''}.`
+			);
+			if (!quote) said.push('We will write again when we have a price.');
+		}
+		return said.join(' ');
+	};
+	const buttonLabel = findings ? 'Read the findings' : quote ? 'See the quote' : 'See where the job stands';
 	const text = `Hello ${d.customerName},
 
-We have examined your ${d.device} (job ${d.jobNumber}). Our findings, the photos, what we propose and the price are on this private page, where you can also approve the quote and pay:
+${intro(d.device, d.jobNumber)}
 
 ${safeHref(d.reportUrl)}
 
@@ -104,9 +147,12 @@ ${signatureText(d.shop)}
 		[
 			p(`Hello ${escapeHtml(d.customerName)},`),
 			p(
-				`We have examined your <strong>${escapeHtml(d.device)}</strong> (job <span style="font-family:monospace">${escapeHtml(d.jobNumber)}</span>). Our findings, the photos, what we propose and the price are on a private page, where you can also approve the quote and pay.`
+				intro(
+					`<strong>${escapeHtml(d.device)}</strong>`,
+					`<span style="font-family:monospace">${escapeHtml(d.jobNumber)}</span>`
+				)
 			),
-			button(d.reportUrl, 'Read the findings'),
+			button(d.reportUrl, buttonLabel),
 			p(
 				`The link is for you alone and works until ${escapeHtml(until)}. Until we have spoken, please do not try to charge the phone or switch it on.`
 			)

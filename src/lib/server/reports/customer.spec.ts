@@ -140,6 +140,31 @@ describe('report links', () => {
 		expect(text).not.toContain('@shop.test');
 	});
 
+	it('before findings or a quote, the mail says "received and being examined" with the link, and the job stays in diagnosis', async () => {
+		const job = await newJob();
+		await jobs.transition(job.id, 'diagnosing', techId);
+		const { url } = await sendReport(techId, job.id);
+		const [mail] = await mailsFor(job.id);
+		expect(mail.subject).toMatch(/received and being examined/);
+		expect(mail.text).toContain(url);
+		expect(mail.text).toContain('and are examining it');
+		expect(mail.text).not.toMatch(/our findings|the photos|price are|approve the quote/i);
+		// Nothing to approve yet, so the job is not "awaiting approval".
+		expect((await jobs.get(job.id))!.status).toBe('diagnosing');
+	});
+
+	it('with a quote but no findings, the mail names the quote and the job moves to awaiting approval', async () => {
+		const job = await newJob();
+		await quotesQ.save(techId, job.id, { lines });
+		await jobs.transition(job.id, 'diagnosing', techId);
+		await sendReport(techId, job.id);
+		const [mail] = await mailsFor(job.id);
+		expect(mail.subject).toMatch(/— quote \(job/);
+		expect(mail.text).toContain('The repair we propose with its price is on this private page');
+		expect(mail.text).not.toMatch(/our findings|the photos/i);
+		expect((await jobs.get(job.id))!.status).toBe('awaiting-approval');
+	});
+
 	it('refuses to send without a customer e-mail', async () => {
 		const job = await newJob(null);
 		await expect(sendReport(techId, job.id)).rejects.toThrow(/no e-mail address/);

@@ -3,10 +3,12 @@
  * apply confirmed payments (webhook), and tell the customer the phone is ready. Mail is only
  * queued, inside the transaction of the change it reports.
  */
-import { eq, sql } from 'drizzle-orm';
+import { and, eq, isNotNull, sql } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
 import { customers, jobs, type Job } from '$lib/server/db/schema/jobs';
 import { quotes } from '$lib/server/db/schema/quotes';
+import { runs } from '$lib/server/db/schema/runs';
+import { attachments } from '$lib/server/db/schema/attachments';
 import type { Payment, PaymentStatus } from '$lib/server/db/schema/payments';
 import { record } from '$lib/server/audit';
 import { enqueue } from '$lib/server/mail/queue';
@@ -52,9 +54,25 @@ async function customerOf(tx: Tx, job: Job) {
 	return c;
 }
 
+/** Whether the customer's page has findings (a finished run's verdict) and photos to show. */
+async function pageContents(tx: Tx, jobId: string) {
+	const [finished] = await tx
+		.select({ id: runs.id })
+		.from(runs)
+		.where(and(eq(runs.jobId, jobId), eq(runs.status, 'completed'), isNotNull(runs.verdictStep)))
+		.limit(1);
+	const [photo] = await tx
+		.select({ id: attachments.id })
+		.from(attachments)
+		.where(and(eq(attachments.jobId, jobId), eq(attachments.shownToCustomer, true)))
+		.limit(1);
+	return { findings: Boolean(finished), photos: Boolean(photo) };
+}
+
 /**
  * "Send report": a new private link, the current draft quote marked sent, the report mail queued,
- * and a job still in diagnosis moved to awaiting approval — all or nothing. Returns the link so the
+ * and a job in diagnosis with a quote to decide moved to awaiting approval — all or nothing. The
+ * mail says what the page holds now: before findings or a quote, that the phone is being examined. Returns the link so the
  * sender can also read it out or text it.
  */
 export async function sendReport(actorId: string, jobId: string) {
@@ -86,10 +104,12 @@ export async function sendReport(actorId: string, jobId: string) {
 			jobNumber: formatJobNumber(job.number),
 			device: `${job.maker} ${job.model}`,
 			reportUrl: url,
-			expiresAt: link.expiresAt
+			expiresAt: link.expiresAt,
+			has: { ...(await pageContents(tx, jobId)), quote: quote !== null }
 		});
 		await enqueue(tx, { to: customer.email, ...mail, related: { type: 'job', id: jobId } });
-		if (job.status === 'diagnosing')
+		// Awaiting approval means a quote is waiting on the customer; without one the job stays put.
+		if (job.status === 'diagnosing' && quote)
 			await transition(jobId, 'awaiting-approval', actorId, 'Report sent to the customer', tx);
 		await record(tx, {
 			actorId,

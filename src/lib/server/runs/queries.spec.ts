@@ -67,7 +67,7 @@ async function refusal(p: Promise<unknown>): Promise<RunRuleError> {
 
 beforeAll(async () => {
 	tech = await staff.create(null, {
-		name: 'Juno Calloway',
+		name: 'Juno Callardine',
 		email: 'juno@shop.test',
 		role: 'technician',
 		password: 'tech-password-1'

@@ -56,7 +56,7 @@ const expected = (schema: z.ZodType) => {
 
 beforeAll(async () => {
 	const t = await staff.create(null, {
-		name: 'Ines Marlow',
+		name: 'Ines Marrowby',
 		email: 'ines@shop.test',
 		role: 'technician',
 		password: 'ines-password-1'
