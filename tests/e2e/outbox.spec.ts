@@ -28,6 +28,9 @@ test('a lead sends a test message: it leaves through the queue and arrives at th
 
 	const row = page.getByTestId('outbox-row').filter({ hasText: to });
 	await expect(row.getByText('Sent', { exact: true })).toBeVisible({ timeout: 15_000 });
+	// The app's one date format (formatDateTime in src/lib/jobs/format.ts: en-GB, "4 Dec 2026, 14:35").
+	const appDate = /^\d{1,2} [A-Z][a-z]{2,3} \d{4}, \d{2}:\d{2}$/;
+	await expect(row.getByTestId('outbox-when')).toHaveText(appDate);
 	await expect.poll(() => mailbox().filter((m) => m.envelopeTo.includes(to)).length).toBe(1);
 	const [mail] = mailbox().filter((m) => m.envelopeTo.includes(to));
 	expect(mail.text).toContain('from the Tidemark Outbox');
@@ -35,6 +38,7 @@ test('a lead sends a test message: it leaves through the queue and arrives at th
 
 	await row.getByRole('link').click();
 	await expect(page.getByTestId('mail-status')).toHaveText('Sent');
+	await expect(page.getByTestId('mail-sent-at')).toHaveText(appDate);
 	await expect(page.locator('iframe[title="HTML version of the message"]')).toBeVisible();
 	await page.getByRole('button', { name: 'Plain text' }).click();
 	await expect(page.getByTestId('mail-text')).toContainText('from the Tidemark Outbox');
