@@ -23,6 +23,7 @@ export function generateFlow(size: number, seed = 12345): FlowDefinition {
 				title: `Reading ${i}`,
 				minutes: 2,
 				unit: 'A',
+				provenance: [{ about: 'the 0.01 A and 0.5 A lines', basis: 'common-practice' }],
 				domain: { min: 0 },
 				ranges: [
 					{ max: 0.01, next, label: 'No draw' },
@@ -49,7 +50,12 @@ export function generateFlow(size: number, seed = 12345): FlowDefinition {
 		steps[id(v)] = {
 			kind: 'verdict',
 			title: `Verdict ${v}`,
-			verdict: { code: `verdict-${v}`, severity: 'repair', repair: '- [ ] Repair.', risks: 'Risks.' }
+			verdict: {
+				code: `verdict-${v}`,
+				severity: 'repair',
+				repair: '- [ ] Repair.\n- [ ] New adhesive and seals.',
+				risks: 'Risks. Water resistance is no longer assured.'
+			}
 		};
 	return { id: 'generated', title: 'Generated', summary: '', symptoms: [], start: id(0), steps };
 }

@@ -31,7 +31,12 @@ const expected: Record<ProblemCode, [ProblemCode, string | undefined][]> = {
 	'range-empty': [['range-empty', 'speaker-resistance']],
 	'range-outside-domain': [['range-outside-domain', 'speaker-resistance']],
 	'unknown-caution': [['unknown-caution', 'open-and-look']],
-	'id-mismatch': [['id-mismatch', undefined]]
+	'id-mismatch': [['id-mismatch', undefined]],
+	'provenance-missing': [['provenance-missing', 'speaker-resistance']],
+	'provenance-unsourced': [['provenance-unsourced', 'speaker-resistance']],
+	'caution-missing': [['caution-missing', 'clean-connector']],
+	'severity-mismatch': [['severity-mismatch', 'replace-speaker']],
+	'water-resistance-missing': [['water-resistance-missing', 'cleaned']]
 };
 
 describe('checkFlow on the crafted fixtures', () => {
@@ -90,7 +95,8 @@ function flow(steps: Record<string, unknown>, start = 'a'): FlowDefinition {
 const verdict = (code: string) => ({
 	kind: 'verdict',
 	title: code,
-	verdict: { code, severity: 'repair', repair: 'r', risks: 'k' }
+	// no-fault: the trade rules of repairing verdicts have tests of their own (rules.spec.ts)
+	verdict: { code, severity: 'no-fault', repair: 'r', risks: 'k' }
 });
 const test = (minutes: number, ...next: string[]) => ({
 	kind: 'test',
@@ -103,6 +109,7 @@ const measure = (domain: object | undefined, ranges: object[]) => ({
 	title: 'm',
 	minutes: 1,
 	unit: 'V',
+	provenance: [{ about: 'the bands', basis: 'common-practice' }],
 	...(domain && { domain }),
 	ranges
 });

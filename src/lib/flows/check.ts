@@ -15,6 +15,7 @@ import {
 } from './graph';
 import { schemaProblems, type FlowProblem } from './problems';
 import { rangeProblems } from './ranges';
+import { ruleProblems } from './rules';
 import { exitsOf, flowSchema, STEP_KINDS, type FlowDefinition, type StepKind } from './schema';
 
 export { PROBLEM_CODES, formatPath, type FlowProblem, type ProblemCode } from './problems';
@@ -108,6 +109,7 @@ function stepProblems(g: FlowGraph, problems: FlowProblem[]) {
 	g.ids.forEach((id, i) => {
 		const step = g.steps[i];
 		const at = ['steps', id];
+		ruleProblems(id, step, problems);
 		for (const word of step.cautions ?? [])
 			if (!isCaution(word))
 				problems.push({

@@ -26,6 +26,7 @@ export function tinyFlow(): FlowDefinition {
 				title: 'Current draw',
 				minutes: 2,
 				unit: 'A',
+				provenance: [{ about: 'the 0.5 A line between low and high draw', basis: 'common-practice' }],
 				domain: { min: 0 },
 				ranges: [
 					{ max: 0.5, next: 'fine', label: 'Low' },
@@ -40,7 +41,12 @@ export function tinyFlow(): FlowDefinition {
 			short: {
 				kind: 'verdict',
 				title: 'Short on the board',
-				verdict: { code: 'short', severity: 'board-level', repair: '- [ ] Find it', risks: 'May return.' }
+				verdict: {
+					code: 'short',
+					severity: 'board-level',
+					repair: '- [ ] Find it\n- [ ] New adhesive and seals',
+					risks: 'May return. Water resistance is no longer assured.'
+				}
 			}
 		}
 	};

@@ -240,13 +240,15 @@ const flowArb = fc
 				...(r < cuts.length && { max: cuts[r] }),
 				next: id(t)
 			}));
-			steps[id(i)] = { ...base, unit: 'A', ...(domain && { domain }), ranges };
+			// The trade rules (provenance, water resistance) have their own tests in rules.spec.ts.
+			const provenance = [{ about: 'the cuts', basis: 'common-practice' }];
+			steps[id(i)] = { ...base, unit: 'A', provenance, ...(domain && { domain }), ranges };
 		}
 		for (let v = m; v < n; v++)
 			steps[id(v)] = {
 				kind: 'verdict',
 				title: `Verdict ${v}`,
-				verdict: { code: `verdict-${v}`, severity: 'repair', repair: 'r', risks: 'k' }
+				verdict: { code: `verdict-${v}`, severity: 'no-fault', repair: 'r', risks: 'k' }
 			};
 		return { id: 'random', title: 'Random', summary: '', symptoms: [], start: id(0), steps };
 	});
@@ -258,11 +260,18 @@ const openMeasure = {
 	symptoms: [],
 	start: 'step-0',
 	steps: {
-		'step-0': { kind: 'measure', title: 'M', minutes: 0, unit: 'A', ranges: [{ next: 'step-1' }] },
+		'step-0': {
+			kind: 'measure',
+			title: 'M',
+			minutes: 0,
+			unit: 'A',
+			provenance: [{ about: 'no bounds at all', basis: 'common-practice' }],
+			ranges: [{ next: 'step-1' }]
+		},
 		'step-1': {
 			kind: 'verdict',
 			title: 'V',
-			verdict: { code: 'v', severity: 'repair', repair: 'r', risks: 'k' }
+			verdict: { code: 'v', severity: 'no-fault', repair: 'r', risks: 'k' }
 		}
 	}
 };

@@ -16,7 +16,12 @@ export const PROBLEM_CODES = [
 	'range-empty',
 	'range-outside-domain',
 	'unknown-caution',
-	'id-mismatch'
+	'id-mismatch',
+	'provenance-missing',
+	'provenance-unsourced',
+	'caution-missing',
+	'severity-mismatch',
+	'water-resistance-missing'
 ] as const;
 export type ProblemCode = (typeof PROBLEM_CODES)[number];
 
