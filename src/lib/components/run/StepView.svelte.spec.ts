@@ -180,3 +180,41 @@ describe('StepView: verdict', () => {
 		expect(screen.queryByRole('link', { name: /checklists/ })).toBeNull();
 	});
 });
+
+describe('StepView: where the numbers come from', () => {
+	const provenance = [
+		{
+			about: '0.05 V line between short and no short',
+			basis: 'common-practice' as const,
+			source: 'from memory'
+		},
+		{ about: 'valid readings up to 3 V', basis: 'maker' as const },
+		{ about: 'bake at 125 °C', basis: 'published' as const, source: 'IPC/JEDEC J-STD-033' }
+	];
+
+	it("lists each entry of a measure step's provenance, open, beside its bands", () => {
+		render(StepView, { stepId: 'flex-diode', step: { ...measure, provenance } });
+		const region = screen.getByRole('region', { name: 'Where these numbers come from' });
+		const items = within(region)
+			.getAllByRole('listitem')
+			.map((li) => li.textContent?.replace(/\s+/g, ' ').trim());
+		expect(items).toEqual([
+			'0.05 V line between short and no short — common practice, no published source (from memory)',
+			"valid readings up to 3 V — maker's documentation: check your model's",
+			'bake at 125 °C — published: IPC/JEDEC J-STD-033'
+		]);
+		expect(screen.getByRole('list', { name: 'Ranges' })).toBeInTheDocument();
+	});
+
+	it('shows it on a verdict too, and nothing when a step has none', () => {
+		render(StepView, { stepId: 'v', step: { ...verdict, provenance: provenance.slice(2) } });
+		expect(screen.getByRole('region', { name: 'Where these numbers come from' })).toHaveTextContent(
+			'J-STD-033'
+		);
+	});
+
+	it('shows no provenance section for a step without entries', () => {
+		render(StepView, { stepId: 'flex-diode', step: measure });
+		expect(screen.queryByRole('region', { name: 'Where these numbers come from' })).toBeNull();
+	});
+});
