@@ -82,6 +82,8 @@ test('a technician goes from a verdict through the checklists; the job status fo
 	await expect(page).toHaveURL(`/jobs/${jobId}/checklists`);
 	await expect(title(page)).toHaveText(VERDICT);
 	await expect(status(page)).toContainText('Diagnosing');
+	// The remaining risks stand open: they are what the customer is told at collection.
+	await expect(page.getByRole('region', { name: /Remaining risks/ })).toBeVisible();
 
 	// The customer approves the repair; the technician starts it.
 	await moveJob(page, jobId, 'awaiting-approval', 'repairing');
