@@ -1,7 +1,7 @@
 import { render, screen } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it, vi } from 'vitest';
-import { checkFlow } from '$lib/flows/check';
+import { checkFlow, PROBLEM_CODES } from '$lib/flows/check';
 import { setExit } from '$lib/flows/edit';
 import { tinyFlow } from '$lib/flows/fixture';
 import ProblemList from './ProblemList.svelte';
@@ -31,5 +31,14 @@ describe('ProblemList', () => {
 		expect(onjump).toHaveBeenLastCalledWith(
 			expect.objectContaining({ code: 'unreachable-step', step: 'short' })
 		);
+	});
+
+	it('names every problem code in words, the trade rules too', () => {
+		const problems = PROBLEM_CODES.map((code) => ({ code, step: 's', message: 'Some message to read.' }));
+		const { container } = render(ProblemList, { problems, onjump: vi.fn() });
+		const names = [...container.querySelectorAll('[data-problem] .font-semibold')].map((n) => n.textContent);
+		expect(names).toHaveLength(PROBLEM_CODES.length);
+		for (const [i, name] of names.entries()) expect(name, PROBLEM_CODES[i]).not.toBe(PROBLEM_CODES[i]);
+		expect(screen.getByRole('button', { name: /Number without a source s/ })).toBeInTheDocument();
 	});
 });

@@ -83,4 +83,34 @@ describe('StepForm', () => {
 		expect(preview.querySelector('strong')).toHaveTextContent('Hold');
 		expect(preview.querySelector('img')?.getAttribute('onerror')).toBeFalsy();
 	});
+
+	it('adds, edits and removes provenance entries, and the live check names what is missing', async () => {
+		const { editor, user, view } = setup('draw');
+		const problemCodes = () => {
+			editor.checkNow();
+			return editor.check.problems.map((p) => [p.code, p.step]);
+		};
+		expect(problemCodes()).toEqual([]);
+		// The shared tiny flow's measure carries one entry; removing it leaves the bands unsourced.
+		await user.click(screen.getByRole('button', { name: 'Remove entry 1' }));
+		expect(editor.definition.steps.draw.provenance).toBeUndefined();
+		expect(problemCodes()).toEqual([['provenance-missing', 'draw']]);
+		await view.rerender({ editor, stepId: 'draw' });
+		expect(
+			within(screen.getByRole('list', { name: 'Problems in this step' })).getByText(/Add provenance:/)
+		).toBeInTheDocument();
+
+		await user.click(screen.getByRole('button', { name: 'Add a provenance entry' }));
+		const entry = screen.getByRole('group', { name: 'Provenance entry 1' });
+		await user.type(within(entry).getByLabelText('What it covers'), 'the 0.5 A line');
+		await user.selectOptions(within(entry).getByLabelText('Basis'), 'published');
+		expect(editor.definition.steps.draw.provenance).toEqual([
+			{ about: 'the 0.5 A line', basis: 'published' }
+		]);
+		expect(problemCodes()).toEqual([['provenance-unsourced', 'draw']]);
+
+		await user.type(within(entry).getByLabelText('Source'), 'IPC-9999 (invented for the test)');
+		expect(editor.definition.steps.draw.provenance?.[0].source).toBe('IPC-9999 (invented for the test)');
+		expect(problemCodes()).toEqual([]);
+	});
 });
