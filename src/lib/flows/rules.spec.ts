@@ -153,7 +153,7 @@ describe('cautions the text calls for', () => {
 
 	it('reports only the words the step lacks', () => {
 		const [p] = problemsOf({ title: 'Solder a jumper', cautions: ['lead', 'eye'] });
-		expect(p.message).toMatch(/needs the caution flux-fume\. Add it to cautions:/);
+		expect(p.message).toMatch(/needs the caution flux-fume\. Add it to the step's cautions/);
 	});
 
 	it('reads the body and a verdict repair and risks, case-insensitively', () => {

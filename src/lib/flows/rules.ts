@@ -109,7 +109,7 @@ function cautions(id: string, step: Step, text: string, at: string[], problems: 
 		code: 'caution-missing',
 		step: id,
 		path: [...at, 'cautions'],
-		message: `The text mentions ${mentions.join(' and ')}, so the step needs the caution${missing.size > 1 ? 's' : ''} ${[...missing].join(', ')}. Add ${missing.size > 1 ? 'them' : 'it'} to cautions:.`
+		message: `The text mentions ${mentions.join(' and ')}, so the step needs the caution${missing.size > 1 ? 's' : ''} ${[...missing].join(', ')}. Add ${missing.size > 1 ? 'them' : 'it'} to the step's cautions.`
 	});
 }
 
