@@ -1,6 +1,6 @@
 import { render, screen } from '@testing-library/svelte';
 import { describe, expect, it } from 'vitest';
-import { CAUTIONS } from '$lib/flows/cautions';
+import { CAUTION_CODES, CAUTIONS } from '$lib/flows/cautions';
 import CautionBanner from './CautionBanner.svelte';
 import Markdown from './Markdown.svelte';
 
@@ -13,6 +13,13 @@ describe('CautionBanner', () => {
 		expect(why.open).toBe(false);
 		// The flash point named in the vocabulary (NIOSH Pocket Guide) is the reason given.
 		expect(why).toHaveTextContent('11.7 °C');
+		expect(banner.querySelector('svg')).not.toBeNull();
+	});
+
+	it.each(CAUTION_CODES.map((c) => [c]))('draws %s with its own icon, words and rule', (code) => {
+		render(CautionBanner, { code });
+		const banner = screen.getByRole('note', { name: `Caution: ${CAUTIONS[code].words}` });
+		expect(banner).toHaveTextContent(CAUTIONS[code].rule);
 		expect(banner.querySelector('svg')).not.toBeNull();
 	});
 });
