@@ -112,3 +112,29 @@ describe('deepEqual and formatValue', () => {
 		expect(formatValue('')).toBe('(empty)');
 	});
 });
+
+describe('provenance in a diff', () => {
+	it('reports a step whose provenance changed, with the entries told apart', () => {
+		const base = shipped('no-power-after-liquid');
+		const id = Object.keys(base.steps).find((k) => base.steps[k].kind === 'measure')!;
+		const entries = [
+			{ about: '0.02 A standby limit', basis: 'common-practice' as const },
+			{ about: 'bake at 125 °C', basis: 'published' as const, source: 'IPC/JEDEC J-STD-033' }
+		];
+		const b = must(setStepField(base, id, 'provenance', entries));
+		const [step] = diffVersions(base, b).changed;
+		expect(step.id).toBe(id);
+		expect(step.changes).toEqual([
+			{
+				field: 'provenance',
+				label: 'Where the numbers come from',
+				...(base.steps[id].provenance && { before: base.steps[id].provenance }),
+				after: entries
+			}
+		]);
+		expect(formatValue(entries)).toBe(
+			'about: 0.02 A standby limit, basis: common-practice; about: bake at 125 °C, basis: published, source: IPC/JEDEC J-STD-033'
+		);
+		expect(formatValue(['battery', 'esd'])).toBe('battery, esd');
+	});
+});

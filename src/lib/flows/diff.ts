@@ -56,6 +56,7 @@ const STEP_FIELDS: [string, string][] = [
 	['title', 'Title'],
 	['body', 'Instructions'],
 	['cautions', 'Cautions'],
+	['provenance', 'Where the numbers come from'],
 	['minutes', 'Minutes'],
 	['unit', 'Unit'],
 	['instrument', 'Instrument'],
@@ -173,7 +174,11 @@ export function diffVersions(a: FlowDefinition, b: FlowDefinition): FlowDiff {
 /** A field value in a line of text: lists joined, objects as compact `key: value`, text quoted. */
 export function formatValue(value: unknown): string {
 	if (value === undefined) return '(none)';
-	if (Array.isArray(value)) return value.length ? value.map(formatValue).join(', ') : '(empty list)';
+	// Entries that are themselves key: value lists (provenance) are told apart with semicolons.
+	if (Array.isArray(value))
+		return value.length
+			? value.map(formatValue).join(value.some((v) => v && typeof v === 'object') ? '; ' : ', ')
+			: '(empty list)';
 	if (value && typeof value === 'object')
 		return Object.entries(value)
 			.filter(([, v]) => v !== undefined)
