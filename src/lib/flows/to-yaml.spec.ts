@@ -63,4 +63,48 @@ describe('toFlowYaml', () => {
 			].join('\n')
 		);
 	});
+
+	it('places the changelog and provenance where authors write them, entries in about/basis/source order', () => {
+		const def = {
+			steps: {
+				ask: {
+					outcomes: [{ next: 'ask', label: 'Again' }],
+					provenance: [{ source: 'from memory', basis: 'common-practice', about: '5 min watch' }],
+					minutes: 5,
+					cautions: ['esd'],
+					title: 'Watch it for 5 min',
+					kind: 'symptom'
+				}
+			},
+			start: 'ask',
+			changelog: 'Version 2: the watch is five minutes.',
+			symptoms: ['wet'],
+			summary: 'S',
+			title: 'T',
+			id: 'tiny'
+		} as const;
+		const text = toFlowYaml(def as never);
+		expect(text).toContain(
+			[
+				'symptoms: [wet]',
+				'changelog: "Version 2: the watch is five minutes."',
+				'start: ask',
+				'steps:',
+				'  ask:',
+				'    kind: symptom',
+				'    title: Watch it for 5 min',
+				'    cautions: [esd]',
+				'    provenance:',
+				'      - about: 5 min watch',
+				'        basis: common-practice',
+				'        source: from memory',
+				'    minutes: 5'
+			].join('\n')
+		);
+		const again = parseFlow(text);
+		expect(again.ok && again.definition.steps.ask.provenance).toEqual([
+			{ about: '5 min watch', basis: 'common-practice', source: 'from memory' }
+		]);
+		expect(again.ok && again.definition.changelog).toBe(def.changelog);
+	});
 });

@@ -8,12 +8,13 @@ import type { FlowDefinition } from './schema';
 
 export const SCHEMA_COMMENT = 'yaml-language-server: $schema=./flow.schema.json';
 
-const FLOW_KEYS = ['id', 'title', 'summary', 'symptoms', 'start', 'steps'];
+const FLOW_KEYS = ['id', 'title', 'summary', 'symptoms', 'changelog', 'start', 'steps'];
 const STEP_KEYS = [
 	'kind',
 	'title',
 	'body',
 	'cautions',
+	'provenance',
 	'minutes',
 	'unit',
 	'instrument',
@@ -37,6 +38,8 @@ function layout(def: FlowDefinition) {
 			const s = { ...step } as Record<string, unknown>;
 			for (const key of ['outcomes', 'ranges'])
 				if (Array.isArray(s[key])) s[key] = (s[key] as object[]).map((c) => ordered(c, CHOICE_KEYS));
+			if (Array.isArray(s.provenance))
+				s.provenance = (s.provenance as object[]).map((e) => ordered(e, ['about', 'basis', 'source']));
 			if (s.domain) s.domain = ordered(s.domain as object, ['min', 'max']);
 			if (s.verdict) s.verdict = ordered(s.verdict as object, VERDICT_KEYS);
 			return [id, ordered(s, STEP_KEYS)];
