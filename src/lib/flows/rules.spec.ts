@@ -57,6 +57,8 @@ describe('numbers with units', () => {
 		'a 1,5 V line',
 		'within 5 K of the water',
 		'reading 30 Ω',
+		'reading 30 Ω (the ohm sign)',
+		'wait 5 mins',
 		'30 kΩ',
 		'10 ppm',
 		'2 mm gap',

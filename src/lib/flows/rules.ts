@@ -41,11 +41,11 @@ const BOARD_WORK = HAZARD_RULES.filter((r) => r.name === 'hot air' || r.name ===
 
 /**
  * A number followed by one of the units a technician compares against ("0.02 A", "125 °C",
- * "5 min", "99 %"). Case-sensitive on purpose: "MSL 5a" is a moisture level, not 5 amperes. The
+ * "5 min", "99 %"). Ω may be the Greek letter or the ohm sign. Case-sensitive on purpose: "MSL 5a" is a moisture level, not 5 amperes. The
  * number may not be glued to a word ("Sn63Pb37") and the unit may not run on into one ("3 sensors").
  */
 export const NUMBER_WITH_UNIT =
-	/(?<![\p{L}\p{N}.,])\d+(?:[.,]\d+)?\s?(?:°C|°F|K|mV|V|mA|[µμ]A|A|[kMm]?[ΩΩ]|W|s|min|h|%|ppm|mm|m)(?![\p{L}\p{N}])/u;
+	/(?<![\p{L}\p{N}.,])\d+(?:[.,]\d+)?\s?(?:°C|°F|K|mV|V|mA|[µμ]A|A|[kMm]?[ΩΩ]|W|s|mins?|h|%|ppm|mm|m)(?![\p{L}\p{N}])/u;
 
 /** Severities whose repair opens the phone and closes it again. */
 const OPENS_THE_PHONE = new Set(['repair', 'replace', 'board-level']);
