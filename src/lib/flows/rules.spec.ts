@@ -153,6 +153,14 @@ describe('cautions the text calls for', () => {
 		expect(codes({ title, cautions: needs })).toEqual([]);
 	});
 
+	it('lists every hazard it read in one problem', () => {
+		const [p, ...rest] = problemsOf({ title: 'Add flux, cure the UV mask, then connect the bench supply' });
+		expect(rest).toEqual([]);
+		expect(p.message).toMatch(
+			/^The text mentions "flux", "UV" and "bench supply", so the step needs the cautions flux-fume, lead, eye, uv, uv-resin, bench-supply\./
+		);
+	});
+
 	it('reports only the words the step lacks', () => {
 		const [p] = problemsOf({ title: 'Solder a jumper', cautions: ['lead', 'eye'] });
 		expect(p.message).toMatch(/needs the caution flux-fume\. Add it to the step's cautions/);

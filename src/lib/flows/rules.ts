@@ -109,7 +109,7 @@ function cautions(id: string, step: Step, text: string, at: string[], problems: 
 		code: 'caution-missing',
 		step: id,
 		path: [...at, 'cautions'],
-		message: `The text mentions ${mentions.join(' and ')}, so the step needs the caution${missing.size > 1 ? 's' : ''} ${[...missing].join(', ')}. Add ${missing.size > 1 ? 'them' : 'it'} to the step's cautions.`
+		message: `The text mentions ${listed(mentions)}, so the step needs the caution${missing.size > 1 ? 's' : ''} ${[...missing].join(', ')}. Add ${missing.size > 1 ? 'them' : 'it'} to the step's cautions.`
 	});
 }
 
@@ -144,4 +144,9 @@ function verdictRules(id: string, step: Step & { kind: 'verdict' }, at: string[]
 			message:
 				'The repair opens the phone, so its checklist must end with the reassembly: fit new adhesive and seals. Add that step to repair.'
 		});
+}
+
+/** "a", "a and b", "a, b and c". */
+function listed(words: string[]): string {
+	return words.length < 2 ? words.join('') : `${words.slice(0, -1).join(', ')} and ${words.at(-1)}`;
 }
