@@ -140,6 +140,8 @@ describe('cautions the text calls for', () => {
 		['Clean in the ultrasonic tank', ['ultrasonic']],
 		['Connect the bench power supply', ['bench-supply']],
 		['Connect the bench supply', ['bench-supply']],
+		['Connect the bench\n   power supply (words broken across lines)', ['bench-supply']],
+		['Open the\n   phone', ['eye']],
 		['Pry the screen up', ['eye']],
 		['Open the phone', ['eye']],
 		['Connect a charger', ['charging-wet']],
@@ -211,6 +213,9 @@ describe('verdict severity and water resistance', () => {
 			expect(found[1].message).toContain('Add that step to repair');
 		}
 		expect(codes(verdictStep('repair', 'Clean; fit a new seal.'))).toEqual([]);
+		// Block text wraps: the words may sit on two lines.
+		const wrapped = 'Once opened, its water\n   resistance is no longer assured unless new seals are fitted.';
+		expect(codes(verdictStep('repair', 'Clean; fit a new seal.', wrapped))).toEqual([]);
 		expect(codes(verdictStep('no-fault', 'Nothing to do.', 'None.'))).toEqual([]);
 		expect(codes(verdictStep('uneconomic', 'Return unrepaired.', 'None.'))).toEqual([]);
 	});

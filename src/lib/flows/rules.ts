@@ -30,8 +30,8 @@ export const HAZARD_RULES: readonly HazardRule[] = [
 	{ name: 'UV', pattern: /\buv\b|\bsolder[\s-]mask/i, needs: ['uv', 'uv-resin'] },
 	{ name: 'freeze spray', pattern: /\bfreeze[\s-]spray/i, needs: ['freeze-spray'] },
 	{ name: 'ultrasonic', pattern: /\bultrasonic/i, needs: ['ultrasonic'] },
-	{ name: 'bench supply', pattern: /\bbench (?:power )?supply/i, needs: ['bench-supply'] },
-	{ name: 'prying', pattern: /\bpry(?:ing)?\b|\bopen the phone\b/i, needs: ['eye'] },
+	{ name: 'bench supply', pattern: /\bbench\s+(?:power\s+)?supply/i, needs: ['bench-supply'] },
+	{ name: 'prying', pattern: /\bpry(?:ing)?\b|\bopen\s+the\s+phone\b/i, needs: ['eye'] },
 	{ name: 'charging', pattern: /\bcharg(?:er|ers|ing)\b/i, needs: ['charging-wet'] },
 	{ name: 'electrolyte', pattern: /\belectrolyte/i, needs: ['electrolyte'] }
 ];
@@ -128,7 +128,7 @@ function verdictRules(id: string, step: Step & { kind: 'verdict' }, at: string[]
 			break;
 		}
 	if (!OPENS_THE_PHONE.has(severity)) return;
-	if (!/water resistance/i.test(risks))
+	if (!/water\s+resistance/i.test(risks))
 		problems.push({
 			code: 'water-resistance-missing',
 			step: id,
