@@ -48,7 +48,10 @@ describe('face-unlock flow, version 2', () => {
 	});
 
 	it('says in the remaining risks that the depth-module verdict was reached by elimination (point 9)', () => {
-		const end = walk(def, [...toDepthCheck, 'Board side and flex test good; nothing found on the module side either']);
+		const end = walk(def, [
+			...toDepthCheck,
+			'Board side and flex test good; nothing found on the module side either'
+		]);
 		expect(end).toBe(DEPTH);
 		const depth = step(DEPTH);
 		expect(depth.kind === 'verdict' && depth.verdict.risks).toMatch(/elimination/);
@@ -58,7 +61,9 @@ describe('face-unlock flow, version 2', () => {
 		const before = toCompare.slice(0, -1);
 		expect(walk(def, [...before, 0.01])).toBe('front-line-short');
 		expect(walk(def, [...before, 3])).toBe('connector-compare');
-		expect(walk(def, [...toCompare, 'A pin shows OL where its reference reads (open line)'])).toBe('front-line-open');
+		expect(walk(def, [...toCompare, 'A pin shows OL where its reference reads (open line)'])).toBe(
+			'front-line-open'
+		);
 		expect(
 			walk(def, [
 				...toCompare,
@@ -70,7 +75,12 @@ describe('face-unlock flow, version 2', () => {
 	});
 
 	it('keeps its remaining risks honest: liquid near the front sensors may have reached the depth module (trade reference §8)', () => {
-		for (const id of ['front-flex-replace', 'front-flex-transfer', 'front-camera-replace', 'front-line-short']) {
+		for (const id of [
+			'front-flex-replace',
+			'front-flex-transfer',
+			'front-camera-replace',
+			'front-line-short'
+		]) {
 			const s = step(id);
 			expect(s.kind === 'verdict' && s.verdict.risks, id).toMatch(/depth module/);
 		}

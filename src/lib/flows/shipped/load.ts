@@ -43,7 +43,11 @@ export function walk(def: FlowDefinition, events: readonly (string | number)[]):
 }
 
 /** Steps reachable from `from` without passing through any step in `avoid`. */
-export function reachableAvoiding(def: FlowDefinition, from: string, avoid: readonly string[] = []): Set<string> {
+export function reachableAvoiding(
+	def: FlowDefinition,
+	from: string,
+	avoid: readonly string[] = []
+): Set<string> {
 	const seen = new Set<string>();
 	const todo = avoid.includes(from) ? [] : [from];
 	while (todo.length) {

@@ -26,7 +26,13 @@ describe('no-sound flow, version 2', () => {
 		expect(clean).toBe('port-clean');
 		expect(flat(step(clean))).toMatch(/audio route/);
 		expect(flat(step(clean))).toMatch(/isopropyl alcohol of 99 % or more/);
-		const cleaned = step(walk(def, [SILENT, 'It shows a headset or accessory, or a port is wet or dirty', 'No accessory shown now and the sound is back']));
+		const cleaned = step(
+			walk(def, [
+				SILENT,
+				'It shows a headset or accessory, or a port is wet or dirty',
+				'No accessory shown now and the sound is back'
+			])
+		);
 		expect(cleaned.kind === 'verdict' && cleaned.verdict.code).toBe('port-cleaned');
 	});
 
@@ -60,13 +66,20 @@ describe('no-sound flow, version 2', () => {
 		expect(basics).toMatch(/play both back/);
 		expect(basics).toMatch(/different microphone/);
 		for (const [id, s] of Object.entries(def.steps)) expect(flat(s), id).not.toMatch(/voice memo/i);
-		for (const id of ['mic-mesh', 'dry-mic', 'mic-isolate']) expect(flat(step(id)), id).toMatch(/camera video/);
+		for (const id of ['mic-mesh', 'dry-mic', 'mic-isolate'])
+			expect(flat(step(id)), id).toMatch(/camera video/);
 	});
 
 	it('keeps microphones, open-port sensors and the cell out of an ultrasonic bath and shields off first (point 8)', () => {
 		const clean = step('audio-clean');
 		const text = flat(clean);
-		for (const word of [/ultrasonic/, /shield lids off/, /no microphone/, /sensor with an open port/, /never the cell/])
+		for (const word of [
+			/ultrasonic/,
+			/shield lids off/,
+			/no microphone/,
+			/sensor with an open port/,
+			/never the cell/
+		])
 			expect(text).toMatch(word);
 		expect(clean.cautions).toContain('ultrasonic');
 	});
@@ -75,7 +88,9 @@ describe('no-sound flow, version 2', () => {
 		const text = flat(step('audio-circuit'));
 		// IPC/JEDEC J-STD-033: 125 °C, parts ≤ 1.4 mm, saturated — 2a 5 h, 3 9 h, 4 11 h, 5 12 h, 5a 16 h.
 		expect(text).toMatch(/dry the wet board out first/);
-		expect(text).toMatch(/125 °C, parts up to 1\.4 mm thick: MSL 2a 5 h, MSL 3 9 h, MSL 4 11 h, MSL 5 12 h, MSL 5a 16 h/);
+		expect(text).toMatch(
+			/125 °C, parts up to 1\.4 mm thick: MSL 2a 5 h, MSL 3 9 h, MSL 4 11 h, MSL 5 12 h, MSL 5a 16 h/
+		);
 		for (const word of [/preheat/, /underfill/, /shield the neighbouring parts/i]) expect(text).toMatch(word);
 	});
 

@@ -23,10 +23,16 @@ describe('restart-loop flow, version 2', () => {
 		const first = step('power-on-as-received');
 		expect(flat(first)).toMatch(/at least 5 minutes/);
 		expect(first.provenance).toEqual(
-			expect.arrayContaining([expect.objectContaining({ about: expect.stringMatching(/5 min/), basis: 'common-practice' })])
+			expect.arrayContaining([
+				expect.objectContaining({ about: expect.stringMatching(/5 min/), basis: 'common-practice' })
+			])
 		);
-		const watching = Object.entries(def.steps).filter(([, s]) => s.kind !== 'verdict' && /\bwatch/i.test(s.body ?? ''));
-		expect(watching.map(([id]) => id)).toEqual(expect.arrayContaining(['isolate-front-flex', 'isolate-other-modules']));
+		const watching = Object.entries(def.steps).filter(
+			([, s]) => s.kind !== 'verdict' && /\bwatch/i.test(s.body ?? '')
+		);
+		expect(watching.map(([id]) => id)).toEqual(
+			expect.arrayContaining(['isolate-front-flex', 'isolate-other-modules'])
+		);
 		for (const [id, s] of watching) {
 			expect(flat(s), id).toMatch(/at least 5 minutes/);
 			expect(flat(s), id).not.toMatch(/two minutes/);
@@ -36,7 +42,9 @@ describe('restart-loop flow, version 2', () => {
 
 	it('warns wherever the recovery screen can show that restoring or updating from it erases the phone (point 3)', () => {
 		const seen = Object.entries(def.steps).filter(
-			([, s]) => s.kind !== 'verdict' && (s.outcomes ?? []).some((o) => /recovery screen/i.test(o.label))
+			([, s]) =>
+				(s.kind === 'symptom' || s.kind === 'test') &&
+				(s.outcomes ?? []).some((o) => /recovery screen/i.test(o.label))
 		);
 		expect(seen.map(([id]) => id)).toEqual(['power-on-as-received', 'isolate-front-flex']);
 		for (const [id, s] of [...seen, ['isolate-other-modules', step('isolate-other-modules')] as const])
@@ -45,7 +53,9 @@ describe('restart-loop flow, version 2', () => {
 
 	it('records the data as reachable on every answer that shows the phone booting (point 3)', () => {
 		const booting = Object.entries(def.steps).flatMap(([id, s]) =>
-			s.kind === 'verdict' || s.kind === 'measure' ? [] : (s.outcomes ?? []).filter((o) => /^Boots/.test(o.label)).map((o) => ({ id, o }))
+			s.kind === 'symptom' || s.kind === 'test'
+				? (s.outcomes ?? []).filter((o) => /^Boots/.test(o.label)).map((o) => ({ id, o }))
+				: []
 		);
 		expect(booting.length).toBeGreaterThanOrEqual(6);
 		for (const { id, o } of booting) expect(o.records, `${id}: ${o.label}`).toBe('data-reachable');
@@ -99,14 +109,22 @@ describe('restart-loop flow, version 2', () => {
 		expect(text).toMatch(/J-STD-033/);
 		// IPC/JEDEC J-STD-033: 125 °C, parts ≤ 1.4 mm, saturated — 2a 5 h, 3 9 h, 4 11 h, 5 12 h, 5a 16 h.
 		expect(text).toMatch(/125 °C.*1\.4 mm.*MSL 2a 5 h, MSL 3 9 h, MSL 4 11 h, MSL 5 12 h, MSL 5a 16 h/);
-		for (const word of [/preheat/i, /underfill/i, /shield the neighbouring parts/i]) expect(text).toMatch(word);
+		for (const word of [/preheat/i, /underfill/i, /shield the neighbouring parts/i])
+			expect(text).toMatch(word);
 		expect(board.provenance).toEqual(
-			expect.arrayContaining([expect.objectContaining({ basis: 'published', source: expect.stringMatching(/J-STD-033/) })])
+			expect.arrayContaining([
+				expect.objectContaining({ basis: 'published', source: expect.stringMatching(/J-STD-033/) })
+			])
 		);
 	});
 
 	it('keeps a flex that fits as it comes a module swap and makes moving paired parts board-level (point 11)', () => {
-		const known = [...toDiode, 0.4, 'Every pin reads like its reference', 'Boots and stays up with the known-good flex'];
+		const known = [
+			...toDiode,
+			0.4,
+			'Every pin reads like its reference',
+			'Boots and stays up with the known-good flex'
+		];
 		const swap = step(walk(def, [...known, 'Not paired; the new flex works as it comes']));
 		const move = step(walk(def, [...known, 'Paired; the parts must move to the new flex']));
 		expect(swap.kind === 'verdict' && swap.verdict.severity).toBe('replace');

@@ -35,7 +35,8 @@ describe.each(FLOWS)('%s (version 2 rules)', (id) => {
 
 	it('gives every number a technician compares against its provenance (§3)', () => {
 		const missing = steps.flatMap(([sid, s]) => {
-			const hasNumber = NUMBER_WITH_UNIT.test(flat(s)) || (s.kind === 'measure' && (s.ranges?.length ?? 0) > 0);
+			const hasNumber =
+				NUMBER_WITH_UNIT.test(flat(s)) || (s.kind === 'measure' && (s.ranges?.length ?? 0) > 0);
 			return hasNumber && !(s.provenance?.length ?? 0) ? [sid] : [];
 		});
 		expect(missing).toEqual([]);
@@ -46,7 +47,9 @@ describe.each(FLOWS)('%s (version 2 rules)', (id) => {
 	it('names the caution for every hazard a step mentions (§2, point 11)', () => {
 		const missing = steps.flatMap(([sid, s]) =>
 			HAZARDS.flatMap(([words, cautions]) =>
-				words.test(flat(s)) ? cautions.filter((c) => !(s.cautions ?? []).includes(c)).map((c) => `${sid}: ${c}`) : []
+				words.test(flat(s))
+					? cautions.filter((c) => !(s.cautions ?? []).includes(c)).map((c) => `${sid}: ${c}`)
+					: []
 			)
 		);
 		expect(missing).toEqual([]);
@@ -56,12 +59,16 @@ describe.each(FLOWS)('%s (version 2 rules)', (id) => {
 		for (const { id: vid, step } of verdicts(def)) {
 			if (!HEAT_OR_SOLDER.test(step.verdict.repair)) continue;
 			expect(['board-level', 'uneconomic'], vid).toContain(step.verdict.severity);
-			expect(step.cautions, vid).toEqual(expect.arrayContaining(['hot-air', 'flux-fume', 'lead', 'eye', 'battery']));
+			expect(step.cautions, vid).toEqual(
+				expect.arrayContaining(['hot-air', 'flux-fume', 'lead', 'eye', 'battery'])
+			);
 		}
 	});
 
 	it('says in every repair, replace or board-level verdict that water resistance is no longer assured, and reassembles with new adhesive and seals (point 13)', () => {
-		const opened = verdicts(def).filter((v) => ['repair', 'replace', 'board-level'].includes(v.step.verdict.severity));
+		const opened = verdicts(def).filter((v) =>
+			['repair', 'replace', 'board-level'].includes(v.step.verdict.severity)
+		);
 		expect(opened.length).toBeGreaterThan(0);
 		for (const { id: vid, step } of opened) {
 			expect(step.verdict.risks.replace(/\s+/g, ' '), vid).toMatch(/water resistance/i);
@@ -83,7 +90,10 @@ describe.each(FLOWS)('%s (version 2 rules)', (id) => {
 
 	it('names the cleaning solvent with its strength wherever a step uses it (point 8)', () => {
 		for (const [sid, s] of steps)
-			if (/isopropyl alcohol/i.test(s.body ?? '') || (s.kind === 'verdict' && /isopropyl/i.test(s.verdict.repair)))
+			if (
+				/isopropyl alcohol/i.test(s.body ?? '') ||
+				(s.kind === 'verdict' && /isopropyl/i.test(s.verdict.repair))
+			)
 				expect(flat(s), sid).toMatch(/isopropyl alcohol of 99 % or more/i);
 	});
 
