@@ -92,7 +92,7 @@ test('a technician goes from a verdict through the checklists; the job status fo
 
 	const repair = page.getByRole('region', { name: 'Repair checklist' });
 	const items = repair.getByRole('checkbox');
-	await expect(items).toHaveCount(3);
+	await expect(items).toHaveCount(4);
 	await items.first().check();
 	await repair.getByRole('button', { name: 'Save repair checklist' }).click();
 	await expect(repair.getByRole('status')).toHaveText('Repair checklist saved.');

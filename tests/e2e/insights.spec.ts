@@ -101,7 +101,7 @@ test('at an isolation test the technician sees which follow-up test past runs ma
 	page
 }) => {
 	// flows/restart-loop-after-liquid.flow.yaml: "Isolation test with the front sensor flex unplugged"
-	// leads to two different tests (a 6-minute diode reading, a 20-minute isolation of the others).
+	// leads to two different tests (a 6-minute diode reading, a 30-minute isolation of the others).
 	await signIn(page, 'tech');
 	const job = await createJob(page, { imei: testImei('0045'), symptoms: ['restart-loop'] });
 	const runId = await startRun(page, job, 'restart-loop-after-liquid');

@@ -100,9 +100,9 @@ describe('checklists of a job', () => {
 		expect(view!.run.id).toBe(run.id);
 		expect(view!.verdict.title).toBe('No restart seen on the bench');
 		expect(view!.repair.map((i) => i.label)).toEqual([
-			'Note how long the phone ran on the bench without restarting.',
-			'With the customer present or with their consent and unlock, use the front camera, face unlock, a call (earpiece and proximity sensing) and charging: some restarts only come when a sensor is used.',
-			'Offer to open the phone and clean it preventively.'
+			'Note how long the phone ran on the bench without restarting (at least 5 minutes).',
+			'With the customer present or with their consent and unlock, use the front camera, face unlock and a call (earpiece and proximity sensing): some restarts only come when a sensor is used. Leave the charge port alone until it has been seen to be dry.',
+			'Offer a preventive clean inside the phone; opening it breaks the factory adhesive seal, so quote new adhesive and seals with it.'
 		]);
 		expect(view!.repair.every((i) => i.result === null)).toBe(true);
 	});

@@ -155,7 +155,7 @@ describe('events', () => {
 
 	it('answers 400 for an outcome the step does not have, naming the outcomes; nothing is written', async () => {
 		const { run } = await newRun();
-		for (const outcome of [3, -1, 'Explodes']) {
+		for (const outcome of [4, -1, 'Explodes']) {
 			const e = await refusal(
 				runs.recordEvent(
 					run.id,
