@@ -232,6 +232,8 @@ export type JobDetail = Job & {
 	customer: { id: string; name: string; email: string | null; phone: string | null };
 	technicianName: string | null;
 	createdByName: string | null;
+	/** Who recorded what became of the data (src/lib/server/jobs/data-outcome.ts). */
+	dataRecordedByName: string | null;
 	history: JobHistoryEntry[];
 	next: readonly JobStatus[];
 };
@@ -241,17 +243,20 @@ export async function get(id: string): Promise<JobDetail | undefined> {
 	if (!/^[0-9a-f-]{36}$/i.test(id)) return undefined;
 	const db = await getDb();
 	const creator = alias(users, 'creator');
+	const dataRecorder = alias(users, 'data_recorder');
 	const [row] = await db
 		.select({
 			job: jobs,
 			customer: { id: customers.id, name: customers.name, email: customers.email, phone: customers.phone },
 			technicianName: technician.name,
-			createdByName: creator.name
+			createdByName: creator.name,
+			dataRecordedByName: dataRecorder.name
 		})
 		.from(jobs)
 		.innerJoin(customers, eq(customers.id, jobs.customerId))
 		.leftJoin(technician, eq(technician.id, jobs.technicianId))
 		.leftJoin(creator, eq(creator.id, jobs.createdBy))
+		.leftJoin(dataRecorder, eq(dataRecorder.id, jobs.dataRecordedBy))
 		.where(eq(jobs.id, id));
 	if (!row) return undefined;
 	const history = await db
@@ -272,6 +277,7 @@ export async function get(id: string): Promise<JobDetail | undefined> {
 		customer: row.customer,
 		technicianName: row.technicianName,
 		createdByName: row.createdByName,
+		dataRecordedByName: row.dataRecordedByName,
 		history,
 		next: nextStatuses(row.job.status)
 	};

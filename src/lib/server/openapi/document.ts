@@ -6,6 +6,7 @@
  */
 import { z } from 'zod';
 import { jobListQuery, jobPatch, makeJobIntake } from '$lib/schemas/job';
+import { dataOutcomeInput } from '$lib/schemas/data-outcome';
 import { deviceModelQuery } from '$lib/schemas/device-model';
 import { photoUploadFields, runPhotoListQuery, runPhotoUploadFields } from '$lib/photos/api';
 import { MAX_PHOTO_BYTES } from '$lib/photos/limits';
@@ -152,6 +153,22 @@ export function buildOpenApiDocument(origin = '') {
 				}
 			}
 		},
+		'/api/jobs/{id}/data': {
+			parameters: [pathId('job')],
+			put: {
+				operationId: 'recordDataOutcome',
+				summary: 'What became of the customer’s data: backed up, customer declined, or not possible',
+				description:
+					'Recorded on the job with a note, who and when, and audited; a later word replaces an earlier one. On a data-first job, a run whose path proves the data reachable holds every step with the hot-air caution and every board-level verdict (409 `data-not-secured` from the events route) until this is recorded.',
+				requestBody: body(dataOutcomeInput),
+				responses: {
+					'200': reply('The job after the change.', answers.jobDetail),
+					'400': reply('No outcome, or no note.'),
+					'404': reply('No such job.'),
+					...guarded
+				}
+			}
+		},
 		'/api/jobs/{id}/photos': {
 			parameters: [pathId('job')],
 			get: {
@@ -220,7 +237,7 @@ export function buildOpenApiDocument(origin = '') {
 					'400': reply('Bad input, or an outcome or reading the step refuses.', runApiError),
 					'404': reply('No such run.', runApiError),
 					'409': reply(
-						'The step is no longer current or the run has finished; `state` says where it stands.',
+						'The step is no longer current, the run has finished, or (`code: data-not-secured`) a data-first job must record what became of the data before this step; `state` says where it stands.',
 						runApiError
 					),
 					...guarded

@@ -13,6 +13,7 @@ import {
 	waterMotions
 } from '$lib/domain/exposure';
 import { jobStatuses } from '$lib/domain/jobStatus';
+import { dataOutcomes } from '$lib/domain/data-first';
 import { passcodeStatuses } from '$lib/schemas/job';
 import { photoSources, type PhotoDto } from '$lib/photos/limits';
 import type { PhotoErrorResponse, PhotoListResponse, PhotoUploadResponse } from '$lib/photos/api';
@@ -97,6 +98,14 @@ export const jobDetail = z
 			explanation: z.string()
 		}),
 		dataFirst: z.boolean(),
+		dataOutcome: z
+			.enum(dataOutcomes)
+			.nullable()
+			.meta({ description: 'What became of the customer’s data, once recorded (PUT /api/jobs/{id}/data).' }),
+		dataNote: z.string().meta({ description: 'Where the backup went, or why there is none.' }),
+		dataRecordedBy: z.uuid().nullable(),
+		dataRecordedAt: at.nullable(),
+		dataRecordedByName: z.string().nullable(),
 		passcodeStatus: z.enum(passcodeStatuses).meta({ description: 'Never the passcode itself.' }),
 		consentToOpen: z.boolean(),
 		consentAt: at.nullable(),

@@ -13,6 +13,8 @@ import * as quoteQueries from '$lib/server/quotes/queries';
 import { getMoney, getReport, getShop } from '$lib/server/settings/queries';
 import { formatJobNumber, liquidLabels, symptomLabel } from '$lib/schemas/job';
 import { quoteTotals, type QuoteLine } from '$lib/domain/money';
+import { dataFate, type DataFate } from '$lib/domain/data-first';
+import { opensPhone } from '$lib/domain/water-resistance';
 import type { FlowDefinition, Severity } from '$lib/flows/schema';
 import type { Quote } from '$lib/server/db/schema/quotes';
 
@@ -69,6 +71,16 @@ export type Report = {
 		reachedAt: Date | null;
 	} | null;
 	photos: { id: string; caption: string; width: number; height: number; url: string; thumbUrl: string }[];
+	/** What became of the customer's data; null when nothing is known and nobody asked (dataFate). */
+	data: {
+		fate: DataFate;
+		/** Staff cut only: where the backup went or why not, and who recorded it. */
+		note: string | null;
+		recordedBy: string | null;
+		recordedAt: Date | null;
+	} | null;
+	/** A repair that opens the phone is proposed or done: the report says water resistance is not assured. */
+	waterResistance: boolean;
 	quote: ReportQuote | null;
 	/** True when a newer draft is being prepared (customer cut: no price shown meanwhile). */
 	quoteRevising: boolean;
@@ -149,6 +161,19 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 		};
 	}
 
+	// What the job's runs proved about the data: reached in any run, or found unreachable.
+	const reach = await db
+		.select({ dataReachable: runs.dataReachable })
+		.from(runs)
+		.where(eq(runs.jobId, jobId));
+	const reachable = reach.some((r) => r.dataReachable === true)
+		? true
+		: reach.some((r) => r.dataReachable === false)
+			? false
+			: null;
+	const fate = dataFate(job, reachable);
+	const staff = audience === 'staff';
+
 	const shown = await db
 		.select({
 			id: attachments.id,
@@ -183,6 +208,18 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 			submerged: job.submerged
 		},
 		verdict,
+		data: fate
+			? {
+					fate,
+					note: staff && job.dataOutcome ? job.dataNote : null,
+					recordedBy: staff ? job.dataRecordedByName : null,
+					recordedAt: job.dataOutcome ? job.dataRecordedAt : null
+				}
+			: null,
+		// Said once: a v2 flow's verdict risks already say it in their own words.
+		waterResistance:
+			opensPhone(verdict?.severity ?? null, (visible?.lines as QuoteLine[] | undefined) ?? []) &&
+			!/water resistance/i.test(verdict?.risks ?? ''),
 		photos: shown.map((p) => ({
 			...p,
 			url: `${base}/${p.id}/display`,

@@ -11,6 +11,7 @@ import { flows, flowVersions, users } from '$lib/server/db/schema';
 import { runs, runSteps, type Run, type StepAnswer } from '$lib/server/db/schema/runs';
 import { record } from '$lib/server/audit';
 import { recordRunFinished } from '$lib/server/insights/facts';
+import { dataSecureRefusal } from './data-secure';
 import * as jobQueries from '$lib/server/jobs/queries';
 import * as flowLibrary from '$lib/server/flows/queries';
 import { withStepOrder } from '$lib/server/flows/queries';
@@ -37,7 +38,8 @@ export class RunRuleError extends Error {
 			| 'flow-not-published'
 			| 'stale-step'
 			| 'run-finished'
-			| 'invalid-event',
+			| 'invalid-event'
+			| 'data-not-secured',
 		message: string,
 		public state?: RunState
 	) {
@@ -285,6 +287,15 @@ async function planEvent(
 	restored.stop();
 	// The checks above mirror the machine's guards; this catches any case where they disagree.
 	if (after.context.path === before.context.path) throw invalid('The flow does not accept this answer here.');
+
+	// Data first (./data-secure.ts): held until the job records what became of the data.
+	const held = await dataSecureRefusal(db, run.jobId, definition, {
+		from: run.currentStep,
+		to: String(after.value),
+		back: event.type === 'BACK',
+		reachable: dataReachableOf(after)
+	});
+	if (held) throw new RunRuleError(409, 'data-not-secured', held, stateOf(run));
 
 	const revises = event.type === 'BACK' ? last : null;
 	if (revises) answer = { back: { revised: revises.seq } };

@@ -41,6 +41,7 @@ export const moneySettingsSchema = taxSettingsSchema.extend({ currency: currency
 export type MoneySettings = z.infer<typeof moneySettingsSchema>;
 
 export const DEFAULT_TERMS = `- Liquid damage can keep spreading after the phone dries: a part that works today may fail later, and we cannot promise how long a repair lasts beyond our own workmanship.
+- Once a phone has been opened, its water resistance is no longer assured unless new adhesive and seals are fitted.
 - Please do not charge the phone or switch it on until we have spoken.
 - We never need your passcode to diagnose; some tests can only be done with the phone unlocked.
 - Phones not collected within 90 days after we tell you they are ready may be recycled.`;

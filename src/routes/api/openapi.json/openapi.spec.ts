@@ -6,6 +6,7 @@ import { Validator } from '@seriousme/openapi-schema-validator';
 import { imeiCheckDigit } from '$lib/domain/identifiers';
 import * as staff from '$lib/server/staff/queries';
 import { jobListQuery, jobPatch, makeJobIntake } from '$lib/schemas/job';
+import { dataOutcomeInput } from '$lib/schemas/data-outcome';
 import { runAbandonInput, runEventInput, runStartInput } from '$lib/schemas/run';
 import { runPhotoUploadFields } from '$lib/photos/api';
 import * as answers from '$lib/server/openapi/responses';
@@ -85,6 +86,7 @@ describe('GET /api/openapi.json', () => {
 			'/api/jobs',
 			'/api/jobs/{id}',
 			'/api/jobs/{id}/photos',
+			'/api/jobs/{id}/data',
 			'/api/runs',
 			'/api/runs/{id}',
 			'/api/runs/{id}/events',
@@ -109,6 +111,7 @@ describe('GET /api/openapi.json', () => {
 			doc.paths[p][m].requestBody!.content[type].schema;
 		expect(body('/api/jobs', 'post')).toEqual(expected(makeJobIntake()));
 		expect(body('/api/jobs/{id}', 'patch')).toEqual(expected(jobPatch));
+		expect(body('/api/jobs/{id}/data', 'put')).toEqual(expected(dataOutcomeInput));
 		expect(body('/api/runs', 'post')).toEqual(expected(runStartInput));
 		expect(body('/api/runs/{id}/events', 'post')).toEqual(expected(runEventInput));
 		expect(body('/api/runs/{id}/abandon', 'post')).toEqual(expected(runAbandonInput));

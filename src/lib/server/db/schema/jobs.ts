@@ -23,6 +23,7 @@ import {
 	type ExposureAssessment
 } from '../../../domain/exposure';
 import { jobStatuses } from '../../../domain/jobStatus';
+import { dataOutcomes } from '../../../domain/data-first';
 import { users } from './users';
 
 /** Reference list behind the maker/model suggestions at intake; the fields stay free text. */
@@ -95,6 +96,12 @@ export const jobs = pgTable(
 		/** assessExposure's result at intake, kept so the job shows what the technician was told. */
 		exposureAssessment: jsonb('exposure_assessment').$type<ExposureAssessment>().notNull(),
 		dataFirst: boolean('data_first').notNull().default(false),
+		/** What became of the customer's data once a run reached it (src/lib/domain/data-first.ts). */
+		dataOutcome: text('data_outcome', { enum: dataOutcomes }),
+		/** Where the backup went, or why there is none. */
+		dataNote: text('data_note').notNull().default(''),
+		dataRecordedBy: uuid('data_recorded_by').references(() => users.id),
+		dataRecordedAt: timestamp('data_recorded_at', { withTimezone: true }),
 		passcodeStatus: passcodeStatus('passcode_status').notNull(),
 		consentToOpen: boolean('consent_to_open').notNull().default(false),
 		consentAt: timestamp('consent_at', { withTimezone: true }),
@@ -114,7 +121,13 @@ export const jobs = pgTable(
 		check('jobs_identifier_check', sql`${t.imei} is not null or ${t.serial} is not null`),
 		check('jobs_imei_format_check', sql`${t.imei} is null or ${t.imei} ~ '^[0-9]{15}$'`),
 		check('jobs_status_check', sql.raw(`status in (${jobStatuses.map((s) => `'${s}'`).join(', ')})`)),
-		check('jobs_consent_check', sql`not ${t.consentToOpen} or ${t.consentAt} is not null`)
+		check('jobs_consent_check', sql`not ${t.consentToOpen} or ${t.consentAt} is not null`),
+		check(
+			'jobs_data_outcome_check',
+			sql.raw(
+				`data_outcome is null or (data_outcome in (${dataOutcomes.map((o) => `'${o}'`).join(', ')}) and data_recorded_at is not null)`
+			)
+		)
 	]
 );
 

@@ -1,0 +1,17 @@
+/** PUT /api/jobs/:id/data — what became of the customer's data (src/lib/domain/data-first.ts). */
+import { z } from 'zod';
+import { dataOutcomes } from '$lib/domain/data-first';
+
+export const dataOutcomeInput = z.object({
+	outcome: z.enum(dataOutcomes, {
+		error: 'Choose what became of the data: backed up, customer declined, or not possible.'
+	}),
+	note: z
+		.string({ error: 'Add a note.' })
+		.trim()
+		.min(3, 'Add a note: where the backup went, or why there is none.')
+		.max(1000, 'Keep the note under 1000 characters.'),
+	/** The run the technician was in, kept in the audit entry. */
+	runId: z.uuid('The run id must be a UUID.').optional()
+});
+export type DataOutcomeInput = z.infer<typeof dataOutcomeInput>;
