@@ -23,7 +23,8 @@ export const load: PageServerLoad = async (event) => {
 			maker: job.maker,
 			model: job.model,
 			customerName: job.customer.name,
-			dataFirst: job.dataFirst
+			dataFirst: job.dataFirst,
+			dataOutcome: job.dataOutcome
 		}
 	};
 };
