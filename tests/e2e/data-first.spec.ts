@@ -1,3 +1,4 @@
+import AxeBuilder from '@axe-core/playwright';
 import { expect, test, type Browser, type Page } from '@playwright/test';
 import { dataFirstFlow } from '../../src/lib/flows/data-first-fixture';
 import { createJob, hydrated, signIn, startRun, testImei, type accounts } from './helpers';
@@ -32,14 +33,24 @@ async function publish(browser: Browser) {
 
 const title = (page: Page) => page.getByRole('heading', { level: 1 });
 
-async function shoot(page: Page, name: string) {
-	if (!shots) return;
+const TAGS = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22a', 'wcag22aa'];
+
+/** In both themes: no WCAG A/AA violation (axe-core) where `testId` shows, and a screenshot when asked. */
+async function lookAt(page: Page, name: string, testId: string) {
 	for (const theme of ['light', 'dark'] as const) {
 		await page.context().addCookies([{ name: 'theme', value: theme, url: page.url() }]);
 		await page.reload();
 		await hydrated(page);
-		await expect(page.getByTestId('data-secure')).toBeVisible();
-		await page.screenshot({ path: `${shots}/${name}-${theme}.png`, fullPage: true });
+		await expect(page.getByTestId(testId)).toBeVisible();
+		const found = await new AxeBuilder({ page })
+			.withTags(TAGS)
+			.include(`[data-testid="${testId}"]`)
+			.analyze();
+		expect(
+			found.violations.map((v) => `${v.id}: ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`),
+			`${name} (${theme})`
+		).toEqual([]);
+		if (shots) await page.screenshot({ path: `${shots}/${name}-${theme}.png`, fullPage: true });
 	}
 }
 
@@ -65,7 +76,7 @@ test('a data-first run asks for the data to be secured before the hot-air step; 
 	const panel = page.getByTestId('data-secure');
 	await expect(panel.getByRole('heading', { name: 'Secure the customer’s data' })).toBeVisible();
 	await expect(page.getByTestId('save-state')).toHaveText('Saved');
-	await shoot(page, 'data-secure-panel');
+	await lookAt(page, 'data-secure-panel', 'data-secure');
 
 	// The hot-air step waits: the answer is held on the screen, and the server refuses it too.
 	await page.getByRole('button', { name: /Corrosion under a part/ }).click();
@@ -100,6 +111,7 @@ test('a data-first run asks for the data to be secured before the hot-air step; 
 	const data = page.getByTestId('report-data');
 	await expect(data).toHaveAttribute('data-fate', 'backed-up');
 	await expect(data).toContainText('Your data was backed up');
+	await lookAt(page, 'report-data', 'report-data');
 	await expect(
 		page.getByText(/water resistance is no longer assured unless new adhesive and seals/i).first()
 	).toBeVisible();

@@ -89,7 +89,7 @@ export function dataFate(job: DataFirstJob, reachable: boolean | null): DataFate
 
 /** The customer's sentence for each fate. */
 export const dataFateForCustomer: Record<DataFate, string> = {
-	'backed-up': 'Your data was backed up before any work that could put it at risk.',
+	'backed-up': 'Your data was backed up.',
 	declined: 'You declined a backup of your data.',
 	'not-possible': 'A backup of your data was not possible.',
 	reachable: 'Your data could be reached during the diagnosis; no backup is on record.',

@@ -13,6 +13,7 @@ import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import * as report from '$lib/server/reports/report';
+import * as quotes from '$lib/server/quotes/queries';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import { PUT as putData } from '../../../routes/api/jobs/[id]/data/+server';
 import * as runs from './queries';
@@ -258,6 +259,23 @@ describe('the report states what became of the data', () => {
 		expect(customerCut.verdict?.severity).toBe('board-level');
 		expect(customerCut.verdict?.risks).toMatch(/water resistance/i);
 		expect(customerCut.waterResistance).toBe(false);
+	});
+
+	it('says water resistance is not assured once a proposed repair opens the phone, not for a fee alone', async () => {
+		const { job, run } = await newRun({ dataFirst: false });
+		await answer(run.id, 'boots', 0);
+		await answer(run.id, 'inspect', 2); // no fault
+		await quotes.save(tech.id, job.id, {
+			lines: [{ description: 'Diagnosis', kind: 'fee', quantity: 1, unitMinor: 4900 }]
+		});
+		expect((await report.build(job.id, 'staff'))!.waterResistance).toBe(false);
+		await quotes.save(tech.id, job.id, {
+			lines: [
+				{ description: 'Diagnosis', kind: 'fee', quantity: 1, unitMinor: 4900 },
+				{ description: 'Board clean and reseal', kind: 'labour', quantity: 1, unitMinor: 12000 }
+			]
+		});
+		expect((await report.build(job.id, 'staff'))!.waterResistance).toBe(true);
 	});
 
 	it('says the data was not reached, or was reachable, and nothing on a job that never asked', async () => {
