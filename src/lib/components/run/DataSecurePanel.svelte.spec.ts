@@ -149,6 +149,23 @@ describe('RunScreen on a data-first job', () => {
 		expect(calls.filter((c) => c.url.endsWith('/events'))).toEqual([]);
 	});
 
+	it('asks from the start when another run of the job reached the data', async () => {
+		const calls = stubFetch();
+		render(RunScreen, {
+			run: detail(),
+			onresync: vi.fn(),
+			job: { dataFirst: true, dataOutcome: null, dataReachedBefore: true }
+		});
+		expect(screen.getByTestId('data-secure')).toBeInTheDocument();
+		await fireEvent.click(screen.getByRole('button', { name: /Stays dark/ }));
+		await fireEvent.click(screen.getByRole('button', { name: /Corrosion under a part/ }));
+		expect(screen.getByTestId('data-held')).toBeInTheDocument();
+		expect(screen.getByRole('heading', { level: 1 })).toHaveTextContent(
+			'Inspect the board under the microscope'
+		);
+		await waitFor(() => expect(calls.filter((c) => c.url.endsWith('/events'))).toHaveLength(1));
+	});
+
 	it('never asks on a job that is not data-first', async () => {
 		const calls = stubFetch();
 		render(RunScreen, { run: detail(), onresync: vi.fn(), job: { dataFirst: false, dataOutcome: null } });

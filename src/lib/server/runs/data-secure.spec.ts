@@ -170,6 +170,17 @@ describe('the data-first gate on step events', () => {
 		expect((await answer(other.id, 'inspect', 0)).state.currentStep).toBe('lift-part');
 	});
 
+	it('holds a later run of the job too once an earlier run reached the data', async () => {
+		const { job, run } = await newRun();
+		await answer(run.id, 'boots', 0);
+		await runs.abandon(run.id, 'Customer took the phone back for a day', tech);
+		const second = await runs.start(job.id, flow.id, tech);
+		await answer(second.id, 'boots', 2); // stays dark today
+		expect((await refusal(answer(second.id, 'inspect', 0))).code).toBe('data-not-secured');
+		await put(job.id, { outcome: 'not-possible', note: 'Stays dark now; nothing to copy from' });
+		expect((await answer(second.id, 'inspect', 0)).state.currentStep).toBe('lift-part');
+	});
+
 	it('never holds a job that is not data-first', async () => {
 		const { run } = await newRun({ dataFirst: false });
 		await answer(run.id, 'boots', 0);

@@ -289,7 +289,7 @@ async function planEvent(
 	if (after.context.path === before.context.path) throw invalid('The flow does not accept this answer here.');
 
 	// Data first (./data-secure.ts): held until the job records what became of the data.
-	const held = await dataSecureRefusal(db, run.jobId, definition, {
+	const held = await dataSecureRefusal(db, run, definition, {
 		from: run.currentStep,
 		to: String(after.value),
 		back: event.type === 'BACK',

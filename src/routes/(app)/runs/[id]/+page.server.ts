@@ -3,6 +3,8 @@ import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as photos from '$lib/server/photos/queries';
+import { getDb } from '$lib/server/db';
+import { reachedInOtherRun } from '$lib/server/runs/data-secure';
 import { stepsHtmlForVersion } from '$lib/markdown/steps';
 import type { PageServerLoad } from './$types';
 
@@ -10,7 +12,11 @@ export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'technician');
 	const run = await runs.get(event.params.id);
 	if (!run) error(404, { message: 'No run with this id. Runs are started from a job.' });
-	const [job, runPhotos] = await Promise.all([jobs.get(run.jobId), photos.listForRun(run.id)]);
+	const [job, runPhotos, reachedBefore] = await Promise.all([
+		jobs.get(run.jobId),
+		photos.listForRun(run.id),
+		reachedInOtherRun(await getDb(), run)
+	]);
 	if (!job) error(404, { message: 'The job of this run is missing.' });
 	return {
 		run,
@@ -24,7 +30,9 @@ export const load: PageServerLoad = async (event) => {
 			model: job.model,
 			customerName: job.customer.name,
 			dataFirst: job.dataFirst,
-			dataOutcome: job.dataOutcome
+			dataOutcome: job.dataOutcome,
+			/** Another run of this job proved the data reachable (data first holds risky steps here too). */
+			dataReachedBefore: reachedBefore
 		}
 	};
 };
