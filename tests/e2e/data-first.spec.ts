@@ -106,6 +106,7 @@ test('a data-first run asks for the data to be secured before the hot-air step; 
 	await page.goto(`/jobs/${jobId}`);
 	await expect(page.getByTestId('job-data-outcome')).toContainText('Backed up');
 	await expect(page.getByTestId('job-data-outcome')).toContainText('copied to the customer’s own drive');
+	await lookAt(page, 'job-data-outcome', 'job-data-outcome');
 
 	await page.goto(`/jobs/${jobId}/report`);
 	const data = page.getByTestId('report-data');

@@ -16,6 +16,7 @@ import * as report from '$lib/server/reports/report';
 import * as quotes from '$lib/server/quotes/queries';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import { PUT as putData } from '../../../routes/api/jobs/[id]/data/+server';
+import { actions as jobPage } from '../../../routes/(app)/jobs/[id]/+page.server';
 import * as runs from './queries';
 import { RunRuleError } from './queries';
 
@@ -248,6 +249,48 @@ describe('PUT /api/jobs/:id/data', () => {
 		await expect(put(job.id, { outcome: 'declined', note: 'No thanks' }, null)).rejects.toMatchObject({
 			status: 401
 		});
+	});
+});
+
+describe('the job page’s dataOutcome action', () => {
+	function post(jobId: string, fields: Record<string, string>, user: typeof tech | null = tech) {
+		const url = new URL(`http://shop.test/jobs/${jobId}?/dataOutcome`);
+		return jobPage.dataOutcome({
+			url,
+			request: new Request(url, { method: 'POST', body: new URLSearchParams(fields) }),
+			locals: { user },
+			params: { id: jobId },
+			route: { id: '/(app)/jobs/[id]' }
+		} as never);
+	}
+
+	it('records or corrects the outcome, and gives a bad form back with its reason', async () => {
+		const { job } = await newRun();
+		const bad = (await post(job.id, { outcome: 'declined', note: '' })) as {
+			status: number;
+			data: Record<string, unknown>;
+		};
+		expect(bad.status).toBe(400);
+		expect(bad.data).toMatchObject({
+			ok: false,
+			outcome: 'declined',
+			message: expect.stringMatching(/Add a note/)
+		});
+		expect(
+			await post(job.id, { outcome: 'declined', note: 'Customer said no at the counter' })
+		).toMatchObject({
+			ok: true,
+			message: 'Recorded: Customer declined.'
+		});
+		expect((await jobs.get(job.id))!).toMatchObject({
+			dataOutcome: 'declined',
+			dataNote: 'Customer said no at the counter'
+		});
+		// Signed out: sent to sign in (a page action), nothing recorded.
+		await expect(post(job.id, { outcome: 'backed-up', note: 'x y z' }, null)).rejects.toMatchObject({
+			status: 303
+		});
+		expect((await jobs.get(job.id))!.dataOutcome).toBe('declined');
 	});
 });
 

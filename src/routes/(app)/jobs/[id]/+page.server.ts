@@ -7,6 +7,9 @@ import * as photos from '$lib/server/photos/queries';
 import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
 import { customerSection } from '$lib/server/reports/job-section';
 import * as quoteActions from '$lib/server/reports/job-actions';
+import { recordDataOutcome } from '$lib/server/jobs/data-outcome';
+import { dataOutcomeInput } from '$lib/schemas/data-outcome';
+import { dataOutcomeLabels } from '$lib/domain/data-first';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -83,6 +86,32 @@ export const actions: Actions = {
 	refund: async (event) => {
 		const user = requireRole(event, 'lead');
 		return quoteActions.refund(event, user);
+	},
+
+	// What became of the customer's data (src/lib/server/jobs/data-outcome.ts); runs ask on their own.
+	dataOutcome: async (event) => {
+		const user = requireRole(event, 'technician');
+		const form = Object.fromEntries(await event.request.formData());
+		const parsed = dataOutcomeInput.safeParse(form);
+		const back = { outcome: String(form.outcome ?? ''), note: String(form.note ?? '') };
+		if (!parsed.success)
+			return fail(400, {
+				action: 'dataOutcome',
+				ok: false,
+				message: parsed.error.issues[0].message,
+				...back
+			});
+		try {
+			const job = await recordDataOutcome(event.params.id, parsed.data, user.id);
+			return {
+				action: 'dataOutcome',
+				ok: true,
+				message: `Recorded: ${dataOutcomeLabels[job.dataOutcome ?? parsed.data.outcome]}.`
+			};
+		} catch (e) {
+			if (e instanceof jobs.JobRuleError) return refused('dataOutcome', 404, e.message);
+			throw e;
+		}
 	},
 
 	consent: async (event) => {
