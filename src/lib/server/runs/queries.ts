@@ -11,7 +11,7 @@ import { flows, flowVersions, users } from '$lib/server/db/schema';
 import { runs, runSteps, type Run, type StepAnswer } from '$lib/server/db/schema/runs';
 import { record } from '$lib/server/audit';
 import { recordRunFinished } from '$lib/server/insights/facts';
-import { dataSecureRefusal } from './data-secure';
+import { dataSecureRefusal, noteJob } from './data-secure';
 import * as jobQueries from '$lib/server/jobs/queries';
 import * as flowLibrary from '$lib/server/flows/queries';
 import { withStepOrder } from '$lib/server/flows/queries';
@@ -110,6 +110,7 @@ export async function start(jobId: string, flowId: string, technician: Actor): P
 			);
 		if (job.status === 'collected' || job.status === 'cancelled')
 			throw new RunRuleError(409, 'job-closed', 'This job is closed; a returning phone needs a new job.');
+		noteJob(job); // data first: a job that is not data-first is never read again for it (./data-secure.ts)
 		const actor = createActor(machine).start();
 		const snapshot = actor.getPersistedSnapshot() as Record<string, unknown>;
 		actor.stop();
