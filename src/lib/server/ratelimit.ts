@@ -1,34 +1,62 @@
-import { RateLimiterMemory } from 'rate-limiter-flexible';
-
-const WINDOW_SECONDS = 15 * 60;
+const WINDOW_MS = 15 * 60 * 1000;
 const MAX_FAILURES = 10;
 
-// Failed sign-ins, counted per e-mail and per client address. In memory: one shop, one process.
-const byEmail = new RateLimiterMemory({
-	keyPrefix: 'signin-email',
-	points: MAX_FAILURES,
-	duration: WINDOW_SECONDS
-});
-const byAddress = new RateLimiterMemory({
-	keyPrefix: 'signin-ip',
-	points: MAX_FAILURES,
-	duration: WINDOW_SECONDS
-});
+// Failed sign-ins, counted per e-mail and per client address in fixed windows that start with the
+// first failure. In memory: one shop, one process. Every way in (the sign-in page and Auth.js's own
+// credentials endpoint) counts here, because the check sits in the credentials provider.
+type Window = { failures: number; until: number };
+const byEmail = new Map<string, Window>();
+const byAddress = new Map<string, Window>();
+const MAX_KEYS = 10_000;
+
+let now = () => Date.now();
+
+/** Tests move time forward without waiting; pass nothing to go back to the real clock. */
+export function setSignInClock(clock?: () => number) {
+	now = clock ?? (() => Date.now());
+}
+
+function current(map: Map<string, Window>, key: string) {
+	const w = map.get(key);
+	if (w && w.until <= now()) {
+		map.delete(key);
+		return undefined;
+	}
+	return w;
+}
+
+function penalise(map: Map<string, Window>, key: string) {
+	const w = current(map, key);
+	if (w) w.failures += 1;
+	else {
+		// A flood of invented e-mails must not grow the map without end: drop the oldest window.
+		if (map.size >= MAX_KEYS) map.delete(map.keys().next().value!);
+		map.set(key, { failures: 1, until: now() + WINDOW_MS });
+	}
+}
 
 /** Seconds to wait before another attempt, or 0 when the caller may try. */
 export async function signInBlockedFor(email: string, address: string) {
-	const [e, a] = await Promise.all([byEmail.get(email), byAddress.get(address)]);
-	const blocked = [e, a].filter((r) => r && r.consumedPoints >= MAX_FAILURES);
+	const blocked = [current(byEmail, email), current(byAddress, address)].filter(
+		(w): w is Window => !!w && w.failures >= MAX_FAILURES
+	);
 	if (blocked.length === 0) return 0;
-	return Math.ceil(Math.max(...blocked.map((r) => r!.msBeforeNext)) / 1000);
+	return Math.ceil((Math.max(...blocked.map((w) => w.until)) - now()) / 1000);
 }
 
 export async function recordFailedSignIn(email: string, address: string) {
-	await Promise.all([byEmail.penalty(email, 1), byAddress.penalty(address, 1)]);
+	penalise(byEmail, email);
+	penalise(byAddress, address);
 }
 
 export async function clearFailedSignIns(email: string) {
-	await byEmail.delete(email);
+	byEmail.delete(email);
 }
 
-export const signInLimits = { windowMinutes: WINDOW_SECONDS / 60, maxFailures: MAX_FAILURES };
+/** Whole minutes, rounded up, for the refusal message. */
+export function waitMessage(seconds: number) {
+	const minutes = Math.max(1, Math.ceil(seconds / 60));
+	return `Too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`;
+}
+
+export const signInLimits = { windowMinutes: WINDOW_MS / 60_000, maxFailures: MAX_FAILURES };

@@ -14,6 +14,7 @@ const publicColumns = {
 	role: users.role,
 	disabled: users.disabled,
 	mustChangePassword: users.mustChangePassword,
+	sessionGeneration: users.sessionGeneration,
 	createdAt: users.createdAt,
 	updatedAt: users.updatedAt
 };
@@ -124,7 +125,7 @@ export async function changeRole(actorId: string, id: string, role: Role) {
 			if (target.role === 'lead' && !target.disabled) await assertAnotherActiveLead(tx, id, 'role');
 			const [updated] = await tx
 				.update(users)
-				.set({ role, updatedAt: new Date() })
+				.set({ role, sessionGeneration: sql`${users.sessionGeneration} + 1`, updatedAt: new Date() })
 				.where(eq(users.id, id))
 				.returning(publicColumns);
 			await record(tx, {
@@ -148,7 +149,7 @@ export async function setDisabled(actorId: string, id: string, disabled: boolean
 			if (disabled && target.role === 'lead') await assertAnotherActiveLead(tx, id, 'disabled');
 			const [updated] = await tx
 				.update(users)
-				.set({ disabled, updatedAt: new Date() })
+				.set({ disabled, sessionGeneration: sql`${users.sessionGeneration} + 1`, updatedAt: new Date() })
 				.where(eq(users.id, id))
 				.returning(publicColumns);
 			await record(tx, {
@@ -170,7 +171,12 @@ export async function resetPassword(actorId: string, id: string, temporaryPasswo
 			await lockUser(tx, id);
 			await tx
 				.update(users)
-				.set({ passwordHash, mustChangePassword: true, updatedAt: new Date() })
+				.set({
+					passwordHash,
+					mustChangePassword: true,
+					sessionGeneration: sql`${users.sessionGeneration} + 1`,
+					updatedAt: new Date()
+				})
 				.where(eq(users.id, id));
 			await record(tx, { actorId, action: 'staff.reset-password', targetType: 'user', targetId: id });
 		})
@@ -185,10 +191,26 @@ export async function changeOwnPassword(id: string, newPassword: string) {
 			await lockUser(tx, id);
 			await tx
 				.update(users)
-				.set({ passwordHash, mustChangePassword: false, updatedAt: new Date() })
+				.set({
+					passwordHash,
+					mustChangePassword: false,
+					sessionGeneration: sql`${users.sessionGeneration} + 1`,
+					updatedAt: new Date()
+				})
 				.where(eq(users.id, id));
 			await record(tx, { actorId: id, action: 'staff.change-password', targetType: 'user', targetId: id });
 		})
+	);
+}
+
+/** Signs a member out everywhere: every session token issued before now stops working. */
+export async function endSessions(id: string) {
+	const db = await getDb();
+	await staffWrite(() =>
+		db
+			.update(users)
+			.set({ sessionGeneration: sql`${users.sessionGeneration} + 1` })
+			.where(eq(users.id, id))
 	);
 }
 

@@ -2,6 +2,7 @@ import { fail } from '@sveltejs/kit';
 import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { requireUser } from '$lib/server/guards';
+import { renewSession } from '$lib/server/auth';
 import { verifyPassword } from '$lib/server/passwords';
 import * as staff from '$lib/server/staff/queries';
 import { changeOwnPassword } from '$lib/schemas/staff';
@@ -32,6 +33,7 @@ export const actions: Actions = {
 			return setError(form, 'password', 'Choose a password different from the current one.');
 		}
 		await staff.changeOwnPassword(user.id, form.data.password);
+		await renewSession(event, user.email, form.data.password);
 		blank();
 		return message(form, 'Your password is changed.');
 	}

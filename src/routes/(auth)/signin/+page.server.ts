@@ -2,9 +2,9 @@ import { fail, isRedirect, redirect } from '@sveltejs/kit';
 import { AuthError, CredentialsSignin } from '@auth/core/errors';
 import { superValidate, message } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { signIn } from '$lib/server/auth';
+import { forwardedHeaders, signIn, TooManySignIns } from '$lib/server/auth';
 import { signInForm } from '$lib/schemas/staff';
-import { signInBlockedFor, recordFailedSignIn, clearFailedSignIns } from '$lib/server/ratelimit';
+import { waitMessage } from '$lib/server/ratelimit';
 import { safeNext } from '$lib/server/safe-next';
 import * as staff from '$lib/server/staff/queries';
 import type { Actions, PageServerLoad } from './$types';
@@ -21,19 +21,7 @@ export const actions: Actions = {
 		const form = await superValidate(event.request, zod4(signInForm));
 		if (!form.valid) return fail(400, { form: withoutPassword(form) });
 		const email = form.data.email.trim().toLowerCase();
-		const address = event.getClientAddress();
 		const next = safeNext(event.url.searchParams.get('next'));
-
-		const wait = await signInBlockedFor(email, address);
-		if (wait > 0) {
-			return message(
-				withoutPassword(form),
-				`Too many failed sign-ins. Try again in ${Math.ceil(wait / 60)} minutes.`,
-				{
-					status: 429
-				}
-			);
-		}
 
 		const body = new URLSearchParams({ email, password: form.data.password, redirectTo: next });
 		body.set('providerId', 'credentials');
@@ -45,8 +33,9 @@ export const actions: Actions = {
 		try {
 			await signIn({ ...event, request });
 		} catch (e) {
+			// The limit, the failure count and the audit entry live in the credentials provider
+			// (lib/server/auth.ts), so this page and Auth.js's own endpoint share one budget.
 			if (isRedirect(e)) {
-				await clearFailedSignIns(email);
 				const user = await staff.findByEmail(email);
 				redirect(303, user?.mustChangePassword ? '/account?first=1' : next);
 			}
@@ -55,8 +44,10 @@ export const actions: Actions = {
 					status: 403
 				});
 			}
+			if (e instanceof TooManySignIns) {
+				return message(withoutPassword(form), waitMessage(event.locals.signInWait ?? 60), { status: 429 });
+			}
 			if (e instanceof AuthError) {
-				await recordFailedSignIn(email, address);
 				return message(withoutPassword(form), 'That e-mail and password do not match an account.', {
 					status: 400
 				});
@@ -69,21 +60,4 @@ export const actions: Actions = {
 function withoutPassword<T extends { data: { password: string } }>(form: T) {
 	form.data.password = '';
 	return form;
-}
-
-function forwardedHeaders(request: Request) {
-	const out: Record<string, string> = {};
-	for (const name of [
-		'cookie',
-		'host',
-		'origin',
-		'referer',
-		'x-forwarded-for',
-		'x-forwarded-proto',
-		'x-forwarded-host'
-	]) {
-		const value = request.headers.get(name);
-		if (value) out[name] = value;
-	}
-	return out;
 }

@@ -7,6 +7,7 @@ import {
 	integer,
 	jsonb,
 	pgTable,
+	primaryKey,
 	text,
 	timestamp,
 	uniqueIndex,
@@ -98,6 +99,23 @@ export const runSteps = pgTable(
 			.on(t.runId, t.seq)
 			.where(sql`${t.kind} <> 'back' and ${t.supersededAt} is null`)
 	]
+);
+
+/**
+ * The body each idempotency key was first used with (a SHA-256 of its canonical JSON), so a key
+ * reused for a different request is refused with 422 instead of replaying the first answer. Kept
+ * beside run_steps rather than in it: the key is claimed before the event is checked.
+ */
+export const requestKeys = pgTable(
+	'request_keys',
+	{
+		/** What the key belongs to, e.g. `run-event:<run id>`. */
+		scope: text('scope').notNull(),
+		key: text('key').notNull(),
+		bodyHash: text('body_hash').notNull(),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [primaryKey({ columns: [t.scope, t.key] })]
 );
 
 export type Run = typeof runs.$inferSelect;

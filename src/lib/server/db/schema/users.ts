@@ -9,7 +9,8 @@ import {
 	timestamp,
 	uniqueIndex,
 	uuid,
-	bigserial
+	bigserial,
+	integer
 } from 'drizzle-orm/pg-core';
 import { roles } from '../../../roles';
 
@@ -26,6 +27,11 @@ export const users = pgTable(
 		disabled: boolean('disabled').notNull().default(false),
 		/** Set when a lead issues a temporary password; the member is asked to choose their own. */
 		mustChangePassword: boolean('must_change_password').notNull().default(false),
+		/**
+		 * Written into the session token at sign-in and compared on every request; bumped on sign-out,
+		 * password change, role change and disabling, so every earlier token stops working at once.
+		 */
+		sessionGeneration: integer('session_generation').notNull().default(0),
 		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
 	},
