@@ -4,6 +4,7 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { authHandle } from '$lib/server/auth';
 import { DataDirInUseError } from '$lib/server/db/lock';
 import { headersHandle } from '$lib/server/hooks/headers';
+import { paramsHandle } from '$lib/server/hooks/params';
 import { userHandle } from '$lib/server/hooks/user';
 import { shutdown, startup } from '$lib/server/startup';
 import '$lib/server/startup-tasks';
@@ -30,4 +31,4 @@ export const init: ServerInit = async () => {
 	process.once('sveltekit:shutdown' as NodeJS.Signals, () => void shutdown());
 };
 
-export const handle = sequence(authHandle, userHandle, headersHandle);
+export const handle = sequence(authHandle, userHandle, paramsHandle, headersHandle);

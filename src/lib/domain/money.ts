@@ -13,6 +13,7 @@
  * The arithmetic is BigInt so no intermediate product can lose precision, however the limits change.
  */
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 
 /** Beyond this a line or a total is a typo, not a phone repair (100,000.00 in a two-decimal currency). */
 export const MAX_MINOR = 10_000_000;
@@ -23,7 +24,7 @@ export const quoteLineKinds = ['fee', 'parts', 'labour'] as const;
 
 /** Quantities are whole units; price labour per block of time (e.g. per 15 min) rather than in fractions. */
 export const quoteLineSchema = z.object({
-	description: z.string().trim().min(1).max(200),
+	description: text('A line’s description').trim().min(1).max(200),
 	kind: z.enum(quoteLineKinds),
 	quantity: z.number().int().min(1).max(MAX_QUANTITY),
 	unitMinor: z.number().int().min(0).max(MAX_MINOR)

@@ -4,6 +4,7 @@
  * Isomorphic: no server imports.
  */
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import {
 	assessExposure,
 	liquidKinds,
@@ -87,13 +88,11 @@ const LIQUID_MESSAGE = 'Choose the liquid (or “Unknown”).';
 const PASSCODE_MESSAGE = 'Choose whether the customer gave the passcode, withheld it, or it is not needed.';
 
 const intakeShape = {
-	customerName: z
-		.string()
+	customerName: text('The customer’s name')
 		.trim()
 		.min(2, 'Enter the customer’s name (at least 2 characters).')
 		.max(120, 'Use at most 120 characters.'),
-	customerEmail: z
-		.string()
+	customerEmail: text('The e-mail address')
 		.trim()
 		.max(200)
 		.refine(
@@ -101,24 +100,22 @@ const intakeShape = {
 			'Enter a valid e-mail address, or leave it empty.'
 		)
 		.default(''),
-	customerPhone: z
-		.string()
+	customerPhone: text('The phone number')
 		.trim()
 		.refine(
 			(v) => v === '' || PHONE.test(v),
 			'Enter a phone number with digits (spaces, +, - and brackets allowed).'
 		)
 		.default(''),
-	maker: z.string().trim().min(1, 'Enter the maker.').max(80, 'Use at most 80 characters.'),
-	model: z.string().trim().min(1, 'Enter the model.').max(120, 'Use at most 120 characters.'),
-	imei: z.string().trim().max(40, 'An IMEI has 15 digits.').default(''),
-	serial: z.string().trim().max(40, 'Use at most 40 characters.').default(''),
-	symptoms: z.array(z.string().max(60)).max(20, 'Choose at most 20 symptoms.').default([]),
+	maker: text('The maker').trim().min(1, 'Enter the maker.').max(80, 'Use at most 80 characters.'),
+	model: text('The model').trim().min(1, 'Enter the model.').max(120, 'Use at most 120 characters.'),
+	imei: text('The IMEI').trim().max(40, 'An IMEI has 15 digits.').default(''),
+	serial: text('The serial number').trim().max(40, 'Use at most 40 characters.').default(''),
+	symptoms: z.array(text('A symptom').max(60)).max(20, 'Choose at most 20 symptoms.').default([]),
 	// Nullable, not defaulted: a form that never touched these must fail, not take the first choice.
 	liquid: z.enum(liquidKinds, { error: LIQUID_MESSAGE }).nullable(),
 	/** '' when the customer does not know when it happened. */
-	exposedAt: z
-		.string()
+	exposedAt: text('The time of exposure')
 		.trim()
 		.refine(
 			(v) => v === '' || (DATE_TIME.test(v) && !Number.isNaN(Date.parse(v))),
@@ -137,13 +134,13 @@ const intakeShape = {
 	soapy: z.boolean().default(false),
 	depthM: optionalNumber(1000, 'depth in metres'),
 	minutes: optionalNumber(100_000, 'time in minutes'),
-	ratingCode: z.string().trim().max(40).default(''),
+	ratingCode: text('The rating code').trim().max(40).default(''),
 	declaredDepthM: optionalNumber(1000, 'declared depth'),
 	declaredMinutes: optionalNumber(100_000, 'declared minutes'),
 	dataFirst: z.boolean().default(false),
 	passcodeStatus: z.enum(passcodeStatuses, { error: PASSCODE_MESSAGE }).nullable(),
 	consentToOpen: z.boolean().default(false),
-	notes: z.string().trim().max(4000, 'Keep notes under 4000 characters.').default('')
+	notes: text('Notes').trim().max(4000, 'Keep notes under 4000 characters.').default('')
 };
 
 type IntakeShape = z.infer<z.ZodObject<typeof intakeShape>>;
@@ -282,7 +279,7 @@ export type JobSortColumn = (typeof sortColumns)[number];
 
 /** GET /api/jobs and the /jobs page URL: every part optional, so a bare URL lists the newest jobs. */
 export const jobListQuery = z.object({
-	q: z.string().trim().max(100).default(''),
+	q: text('The search').trim().max(100).default(''),
 	status: z.enum(jobStatuses).optional().catch(undefined),
 	technician: z
 		.union([z.uuid(), z.literal('none')])
@@ -313,7 +310,7 @@ export function listQueryString(query: Partial<JobListQuery>): string {
 
 /** PATCH /api/jobs/:id — one change at a time. */
 export const jobPatch = z.union([
-	z.object({ status: z.enum(jobStatuses), note: z.string().trim().max(1000).default('') }).strict(),
+	z.object({ status: z.enum(jobStatuses), note: text('The note').trim().max(1000).default('') }).strict(),
 	z.object({ technicianId: z.uuid().nullable() }).strict(),
 	z.object({ consentToOpen: z.literal(true) }).strict()
 ]);

@@ -4,6 +4,7 @@
  * stay zod-free so the run screen ships no validator; `Same<…>` below keeps the two in step.
  */
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { flowSchema } from '$lib/flows/schema';
 import {
 	runStatusValues,
@@ -14,20 +15,19 @@ import {
 	type RunSummary
 } from '$lib/runs/types';
 
-const key = z
-	.string()
+const key = text('The idempotency key')
 	.trim()
 	.min(8, 'The idempotency key must be at least 8 characters (a random UUID is ideal).')
 	.max(100, 'The idempotency key must be at most 100 characters.');
-const stepId = z.string().trim().min(1, 'Name the step the answer is for.').max(200);
-const notes = z.string().max(4000, 'Notes are limited to 4000 characters.').optional();
+const stepId = text('The step id').trim().min(1, 'Name the step the answer is for.').max(200);
+const notes = text('Notes').max(4000, 'Notes are limited to 4000 characters.').optional();
 
 /** POST /api/runs/:id/events — one event from the run screen. The key makes a retried POST harmless. */
 export const runEventInput = z.discriminatedUnion('type', [
 	z.object({
 		type: z.literal('ANSWER'),
 		stepId,
-		outcome: z.union([z.number().int(), z.string().min(1)]),
+		outcome: z.union([z.number().int(), text('The outcome').min(1)]),
 		idempotencyKey: key,
 		notes
 	}),
@@ -46,14 +46,13 @@ export type RunEventInput = z.infer<typeof runEventInput>;
 /** POST /api/runs — start a run of the flow's current published version. */
 export const runStartInput = z.object({
 	jobId: z.uuid('Choose a job.'),
-	flowId: z.string().trim().min(1, 'Choose a flow.').max(200)
+	flowId: text('The flow id').trim().min(1, 'Choose a flow.').max(200)
 });
 export type RunStartInput = z.infer<typeof runStartInput>;
 
 /** POST /api/runs/:id/abandon. */
 export const runAbandonInput = z.object({
-	reason: z
-		.string()
+	reason: text('The reason')
 		.trim()
 		.min(3, 'Say in a few words why the run stops here.')
 		.max(1000, 'Keep the reason under 1000 characters.')

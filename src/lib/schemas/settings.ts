@@ -1,11 +1,12 @@
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 
 /**
  * The lead's /settings form. The tax rate is typed as a percentage with up to two decimals and
  * stored as basis points (20.5 % → 2050), so the stored rate is always a whole number.
  */
 export const shopSettingsForm = z.object({
-	shopName: z.string().trim().min(2, 'At least 2 characters.').max(80, 'At most 80 characters.'),
+	shopName: text('The shop name').trim().min(2, 'At least 2 characters.').max(80, 'At most 80 characters.'),
 	currency: z
 		.string()
 		.trim()
@@ -22,7 +23,7 @@ export const shopSettingsForm = z.object({
 		.int('Whole days.')
 		.min(1, 'At least one day.')
 		.max(90, 'At most 90 days.'),
-	terms: z.string().max(10_000, 'Keep the terms under 10,000 characters.')
+	terms: text('The terms').max(10_000, 'Keep the terms under 10,000 characters.')
 });
 export type ShopSettingsForm = z.infer<typeof shopSettingsForm>;
 

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { roles } from '$lib/roles';
 
 export const passwordField = z
@@ -8,8 +9,7 @@ export const passwordField = z
 
 export const staffMember = z.object({
 	id: z.uuid(),
-	name: z
-		.string()
+	name: text('The name')
 		.trim()
 		.min(2, 'Enter the full name (at least 2 characters).')
 		.max(80, 'Use at most 80 characters.'),

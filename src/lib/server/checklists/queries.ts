@@ -7,6 +7,7 @@
  * - any function-test fail → diagnosing (from testing or repairing);
  * - every function test answered, none failed → ready (from testing).
  */
+import { isUuid } from '$lib/schemas/ids';
 import { and, desc, eq } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
 import { runs } from '$lib/server/db/schema/runs';
@@ -50,8 +51,6 @@ export type ChecklistView = {
 	functionTest: ChecklistItem[];
 	confirmation: { confirmed: boolean; note: string; at: string } | null;
 };
-
-const isUuid = (s: string) => /^[0-9a-f-]{36}$/i.test(s);
 
 /** The newest completed run of the job with its verdict step, or undefined. */
 async function verdictRun(db: Tx | Awaited<ReturnType<typeof getDb>>, jobId: string) {

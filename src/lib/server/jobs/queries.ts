@@ -3,6 +3,7 @@
  * Every change runs in one transaction with its job_events row (for status) and its audit record.
  * Runs build on `get`, `lockJob` and `transition`.
  */
+import { isUuid } from '$lib/schemas/ids';
 import { and, asc, desc, eq, ilike, isNull, or, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { getDb, type Tx } from '$lib/server/db';
@@ -240,7 +241,7 @@ export type JobDetail = Job & {
 
 /** One job with its customer and status history, or undefined. */
 export async function get(id: string): Promise<JobDetail | undefined> {
-	if (!/^[0-9a-f-]{36}$/i.test(id)) return undefined;
+	if (!isUuid(id)) return undefined;
 	const db = await getDb();
 	const creator = alias(users, 'creator');
 	const dataRecorder = alias(users, 'data_recorder');
@@ -285,7 +286,7 @@ export async function get(id: string): Promise<JobDetail | undefined> {
 
 /** Locks the job row for the rest of the transaction (runs use it too). */
 export async function lockJob(tx: Tx, id: string): Promise<Job> {
-	const [job] = /^[0-9a-f-]{36}$/i.test(id)
+	const [job] = isUuid(id)
 		? await tx.select().from(jobs).where(eq(jobs.id, id)).for('update')
 		: [];
 	if (!job) throw new JobRuleError('not-found', 'No job with this id.');

@@ -7,6 +7,7 @@
 import { and, asc, eq, inArray, or, sql } from 'drizzle-orm';
 import type Stripe from 'stripe';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { getDb, type Tx } from '$lib/server/db';
 import { paymentRefunds, payments, type Payment } from '$lib/server/db/schema/payments';
 import { record } from '$lib/server/audit';
@@ -34,7 +35,7 @@ export const refundInputSchema = z.object({
 		.int('Amounts are whole minor units (cents).')
 		.min(1, 'The refund must be more than zero.')
 		.max(MAX_MINOR),
-	reason: z.string().trim().max(500, 'Keep the reason under 500 characters.').default(''),
+	reason: text('The reason').trim().max(500, 'Keep the reason under 500 characters.').default(''),
 	/** The payment must belong to this: reference type and the start of its reference id. */
 	scope: z.object({ type: z.string().min(1), idPrefix: z.string().min(1) })
 });

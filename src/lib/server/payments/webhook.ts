@@ -1,3 +1,4 @@
+import { isUuid } from '$lib/schemas/ids';
 import { eq, or } from 'drizzle-orm';
 import Stripe from 'stripe';
 import { getDb, type Tx } from '$lib/server/db';
@@ -89,7 +90,7 @@ async function change(
 		.select()
 		.from(payments)
 		.where(
-			ourId && /^[0-9a-f-]{36}$/i.test(ourId)
+			ourId && isUuid(ourId)
 				? or(eq(payments.providerSessionId, session.id), eq(payments.id, ourId))
 				: eq(payments.providerSessionId, session.id)
 		)

@@ -3,8 +3,10 @@
  * approve and decline by the customer, and what is still to pay. Totals always come from
  * quoteTotals() in $lib/domain/money with the tax settings copied onto the version.
  */
+import { isUuid } from '$lib/schemas/ids';
 import { and, desc, eq, inArray, like, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { getDb, type DB, type Tx } from '$lib/server/db';
 import { quotes, type Quote } from '$lib/server/db/schema/quotes';
 import { payments } from '$lib/server/db/schema/payments';
@@ -26,12 +28,11 @@ export class QuoteRuleError extends Error {
 
 export const quoteInputSchema = z.object({
 	lines: z.array(quoteLineSchema).min(1, 'Add at least one line.').max(40, 'At most 40 lines.'),
-	proposal: z.string().trim().max(5000, 'Keep the proposal under 5000 characters.').default('')
+	proposal: text('The proposal').trim().max(5000, 'Keep the proposal under 5000 characters.').default('')
 });
 export type QuoteInput = z.input<typeof quoteInputSchema>;
 
-export const customerNameSchema = z
-	.string()
+export const customerNameSchema = text('Your name')
 	.trim()
 	.min(2, 'Type your full name.')
 	.max(120, 'At most 120 characters.');
@@ -183,7 +184,7 @@ export const paymentReference = (jobId: string, quoteId: string, kind: PaymentKi
 	`${jobId}:${quoteId}:${kind}`;
 export function parsePaymentReference(ref: string) {
 	const m = /^([0-9a-f-]{36}):([0-9a-f-]{36}):(fee|rest)$/i.exec(ref);
-	return m ? { jobId: m[1], quoteId: m[2], kind: m[3] as PaymentKind } : null;
+	return m && isUuid(m[1]) && isUuid(m[2]) ? { jobId: m[1], quoteId: m[2], kind: m[3] as PaymentKind } : null;
 }
 
 /** Every payment of the job, whichever quote version it was for. */

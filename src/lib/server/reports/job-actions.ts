@@ -1,6 +1,7 @@
 /** The job page's customer-side actions; the route calls requireRole first and passes the user. */
 import { fail, type RequestEvent } from '@sveltejs/kit';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import * as quotes from '$lib/server/quotes/queries';
 import { getMoney } from '$lib/server/settings/queries';
 import { parseAmount, parseLines, type RawLine } from '$lib/quotes/input';
@@ -80,8 +81,8 @@ export async function revokeLink(event: RequestEvent<{ id: string }>, user: User
 
 const refundForm = z.object({
 	paymentId: z.uuid('Choose a payment.'),
-	amount: z.string().max(30, 'Enter the amount as a number, e.g. 12.50.'),
-	reason: z.string().trim().max(500, 'Keep the reason under 500 characters.').default('')
+	amount: text('The amount').max(30, 'Enter the amount as a number, e.g. 12.50.'),
+	reason: text('The reason').trim().max(500, 'Keep the reason under 500 characters.').default('')
 });
 
 /**

@@ -1,10 +1,11 @@
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { getDb } from '$lib/server/db';
 import { settings } from '$lib/server/db/schema';
 import { taxSettingsSchema } from '$lib/domain/money';
 
-export const shopSchema = z.object({ name: z.string().trim().min(2).max(80) });
+export const shopSchema = z.object({ name: text('The shop name').trim().min(2).max(80) });
 export type Shop = z.infer<typeof shopSchema>;
 
 const defaults = { shop: { name: 'Tidemark' } satisfies Shop };
@@ -54,7 +55,7 @@ export const reportSettingsSchema = z.object({
 		.min(1, 'At least one day.')
 		.max(90, 'At most 90 days: a link should not outlive the job.'),
 	/** Markdown, sanitised when shown. */
-	terms: z.string().max(10_000, 'Keep the terms under 10,000 characters.')
+	terms: text('The terms').max(10_000, 'Keep the terms under 10,000 characters.')
 });
 export type ReportSettings = z.infer<typeof reportSettingsSchema>;
 

@@ -1,6 +1,7 @@
 import { fail, type RequestEvent } from '@sveltejs/kit';
 import type { ReportLink } from '$lib/server/db/schema/quotes';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { openLink } from '$lib/server/reports/gate';
 import { touch } from '$lib/server/reports/links';
 import * as report from '$lib/server/reports/report';
@@ -28,7 +29,7 @@ export const load: PageServerLoad = async (event) => {
 
 const decisionForm = z.object({
 	quoteId: z.uuid('Reload the page.'),
-	name: z.string().max(200).default('')
+	name: text('Your name').max(200).default('')
 });
 const payForm = z.object({ quoteId: z.uuid('Reload the page.'), kind: z.enum(['fee', 'rest']) });
 

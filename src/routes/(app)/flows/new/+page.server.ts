@@ -6,6 +6,7 @@ import * as authoring from '$lib/server/flows/authoring';
 import type { Actions, PageServerLoad } from './$types';
 import { blankForm, MAX_UPLOAD_BYTES } from './schema';
 import { newFlow } from '$lib/flows/edit';
+import { storable, unstorableMessage } from '$lib/schemas/text';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'senior');
@@ -68,6 +69,8 @@ export const actions: Actions = {
 		} else if (typeof pasted === 'string') text = pasted;
 		// Forms send line breaks as CRLF; the flow (and the text given back) keeps plain newlines.
 		text = text.replace(/\r\n?/g, '\n');
+		if (!storable(text))
+			return fail(400, { upload: { message: unstorableMessage('The flow file'), text: '', problems: [] } });
 		if (!text.trim())
 			return fail(400, {
 				upload: { message: 'Choose a .flow.yaml file, or paste its text.', text: '', problems: [] }

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { kebabId, RESERVED_FLOW_IDS } from '$lib/flows/schema';
 import { MAX_FLOW_CHARS } from '$lib/flows/parse';
 
@@ -10,8 +11,7 @@ export const blankForm = z.object({
 		(id) => !RESERVED_FLOW_IDS.includes(id),
 		'That id is taken by the library itself; choose another.'
 	),
-	title: z
-		.string()
+	title: text('The title')
 		.trim()
 		.min(3, 'Give the flow a title of at least 3 characters.')
 		.max(200, 'Keep the title under 200 characters.')

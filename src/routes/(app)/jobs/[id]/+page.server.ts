@@ -1,5 +1,6 @@
 import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from '$lib/server/runs/job-section';
@@ -29,7 +30,7 @@ export const load: PageServerLoad = async (event) => {
 
 const statusForm = z.object({
 	to: jobStatusSchema,
-	note: z.string().trim().max(1000, 'Keep the note under 1000 characters.').default('')
+	note: text('The note').trim().max(1000, 'Keep the note under 1000 characters.').default('')
 });
 const assignForm = z.object({ technicianId: z.union([z.uuid(), z.literal('')]) });
 

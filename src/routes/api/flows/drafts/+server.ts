@@ -1,5 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { z } from 'zod';
+import { storableJson } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import { authoringFailure, draftJson, readJson, type DraftJson } from '$lib/server/flows/http';
@@ -9,7 +10,7 @@ export type DraftCreatedResponse = DraftJson;
 
 const body = z.union([
 	z.strictObject({ fromVersionId: z.uuid() }),
-	z.strictObject({ definition: z.record(z.string(), z.unknown()) })
+	z.strictObject({ definition: storableJson(z.record(z.string(), z.unknown()), 'The flow') })
 ]);
 
 /** POST /api/flows/drafts — { fromVersionId } for a draft of a published version, or { definition } for a new flow. */

@@ -1,5 +1,6 @@
 import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as checklists from '$lib/server/checklists/queries';
 import { ChecklistRuleError, FUNCTION_TESTS } from '$lib/server/checklists/queries';
@@ -26,14 +27,16 @@ const functionForm = z.object(
 			t.key,
 			z.object({
 				result: z.enum(['pass', 'fail', 'not-tested']).nullable(),
-				note: z.string().trim().max(500, `Keep the note on ${t.label} under 500 characters.`)
+				note: text(`The note on ${t.label}`)
+					.trim()
+					.max(500, `Keep the note on ${t.label} under 500 characters.`)
 			})
 		])
 	)
 );
 const confirmForm = z.object({
 	confirmed: z.enum(['yes', 'no'], { error: 'Choose yes or no.' }),
-	note: z.string().trim().max(2000, 'Keep the note under 2000 characters.')
+	note: text('The note').trim().max(2000, 'Keep the note under 2000 characters.')
 });
 
 /** Each action answers `{ action, ok, message, field? }`; the page shows it beside its form. */

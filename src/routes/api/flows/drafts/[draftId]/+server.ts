@@ -1,5 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { z } from 'zod';
+import { storableJson, text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
@@ -11,8 +12,8 @@ export type DraftResponse = DraftJson;
 const id = z.uuid();
 const saveBody = z.strictObject({
 	revision: z.number().int().min(1),
-	definition: z.record(z.string(), z.unknown()),
-	changelog: z.string().max(2000).nullable().optional()
+	definition: storableJson(z.record(z.string(), z.unknown()), 'The flow'),
+	changelog: text('The changelog').max(2000).nullable().optional()
 });
 
 /** GET /api/flows/drafts/<id> — a draft (or any version) with its revision, for the editor. */

@@ -1,5 +1,6 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { checkFlow } from '$lib/flows/check';
 import { diffVersions } from '$lib/flows/diff';
 import { requireRole } from '$lib/server/guards';
@@ -103,8 +104,7 @@ export const actions: Actions = {
 };
 
 const sendBackForm = z.object({
-	comment: z
-		.string()
+	comment: text('The comment')
 		.trim()
 		.min(1, 'Say what needs changing, so the author knows.')
 		.max(4000, 'Keep the comment under 4000 characters.')

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { storableJson } from '$lib/schemas/text';
 import { MAX_FLOW_CHARS } from '$lib/flows/parse';
 import { kebabId } from '$lib/flows/schema';
 
@@ -10,7 +11,7 @@ export const draftParams = z.object({
 /** An autosave: the revision the editor started from and the whole definition (shape-checked later). */
 export const saveBody = z.object({
 	revision: z.number().int().min(1),
-	definition: z.record(z.string(), z.unknown())
+	definition: storableJson(z.record(z.string(), z.unknown()), 'The flow')
 });
 
 /** Bytes an autosave may send: the largest flow file allowed, with room for JSON's quoting. */

@@ -1,5 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import { authoringFailure, draftJson, readJson, type DraftJson } from '$lib/server/flows/http';
@@ -8,7 +9,9 @@ import type { RequestHandler } from './$types';
 export type DraftActionResponse = DraftJson;
 
 const params = z.object({ draftId: z.uuid(), action: z.enum(['submit', 'approve', 'send-back']) });
-const sendBackBody = z.object({ comment: z.string().trim().min(1, 'Say what needs changing.').max(4000) });
+const sendBackBody = z.object({
+	comment: text('The comment').trim().min(1, 'Say what needs changing.').max(4000)
+});
 
 /** POST /api/flows/drafts/<id>/submit | approve | send-back ({ comment }). */
 export const POST: RequestHandler = async (event) => {
