@@ -8,6 +8,10 @@ import { paramsHandle } from '$lib/server/hooks/params';
 import { userHandle } from '$lib/server/hooks/user';
 import { shutdown, startup } from '$lib/server/startup';
 import '$lib/server/startup-tasks';
+import { config as zodConfig } from 'zod/v4/core';
+
+// As in hooks.client.ts: no `new Function` fast path, so the server and the browser validate alike.
+zodConfig({ jitless: true });
 
 export const init: ServerInit = async () => {
 	if (building) return;

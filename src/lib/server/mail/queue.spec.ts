@@ -77,7 +77,7 @@ describe('enqueue', () => {
 		expect(await row(id)).toBeUndefined();
 	});
 
-	it('queues without sending, and refuses a bad address or a two-line subject', async () => {
+	it('queues without sending, refuses a bad address and keeps a subject on one line', async () => {
 		const before = smtp.messages.length;
 		const { id } = await queueOne();
 		expect(await row(id)).toMatchObject({
@@ -91,9 +91,14 @@ describe('enqueue', () => {
 		await expect(
 			enqueue(db, { to: 'not-an-address', subject: 'S', text: 'T', template: 'test' })
 		).rejects.toThrow();
-		await expect(
-			enqueue(db, { to: 'a@example.test', subject: 'S\r\nBcc: x@evil.test', text: 'T', template: 'test' })
-		).rejects.toThrow('A subject is one line.');
+		// A line break or other control character would start a header of the sender's choosing.
+		const injected = await enqueue(db, {
+			to: 'a@example.test',
+			subject: 'S\r\nBcc: x@evil.test\u0085\u2028X-Extra: 1\u0007',
+			text: 'T',
+			template: 'test'
+		});
+		expect((await row(injected.id)).subject).toBe('S Bcc: x@evil.test X-Extra: 1');
 		// Leave the queue empty for the next tests.
 		await db.delete(outgoingMail);
 	});

@@ -1,16 +1,13 @@
 import { z } from 'zod';
 import type { DB, Tx } from '$lib/server/db';
 import { outgoingMail } from '$lib/server/db/schema/mail';
+import { headerText } from './templates';
 
 export const mailMessageSchema = z.object({
 	to: z.email().max(254),
-	// Header lines: a line break here would start a header of the sender's choosing.
-	subject: z
-		.string()
-		.trim()
-		.min(1)
-		.max(200)
-		.refine((s) => !/[\r\n]/.test(s), 'A subject is one line.'),
+	// Header lines: a line break here would start a header of the sender's choosing, so control
+	// characters and line breaks are taken out whoever built the subject.
+	subject: z.string().transform(headerText).pipe(z.string().min(1).max(200)),
 	text: z.string().min(1).max(100_000),
 	html: z.string().max(500_000).nullish(),
 	template: z.string().min(1).max(60),

@@ -182,3 +182,22 @@ describe('templates', () => {
 		expect(none.text).not.toContain('\n\n\n');
 	});
 });
+
+describe('typed values in headers and plain text', () => {
+	it('lose control characters and line breaks: a subject stays one line, a name cannot add lines', () => {
+		const hostile = 'Quinn\r\nBcc: x@evil.test\u0000\u001b[31m\u0085\u2028Tail';
+		const mail = reportReady({
+			shop: { ...shop, name: 'Harbour\r\nX-Injected: 1' },
+			customerName: hostile,
+			jobNumber: 'J-0042',
+			device: 'Corvana\nTern 6',
+			reportUrl: 'https://shop.example.test/r/abc',
+			expiresAt: new Date('2026-12-16T12:00:00Z')
+		});
+		expect(mail.subject).toBe('Your Corvana Tern 6 — findings and quote (job J-0042)');
+		expect(mail.text).toContain('Hello Quinn Bcc: x@evil.test [31m Tail,');
+		expect(mail.text).not.toMatch(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u2028\u2029]/);
+		expect(mail.text).not.toMatch(/^Bcc:|^X-Injected:/m);
+		expect(mail.html).not.toMatch(/[\u0000\u001b\u0085\u2028]/);
+	});
+});

@@ -29,7 +29,30 @@ export function safeHref(url: string): string {
 	return parsed.toString();
 }
 
-const oneLine = (s: string) => s.replace(/[\r\n]+/g, ' ').trim();
+// Control characters (C0, DEL, C1) and line or paragraph separators in a value typed by a customer
+// or by staff would start a new header line in a subject, or hide text in a plain-text part.
+const CONTROL = /[\p{Cc}\u2028\u2029]+/gu;
+
+/** One line with no control characters: for every header and for a typed value in a mail body. */
+export function headerText(s: string): string {
+	return s.replace(CONTROL, ' ').replace(/ {2,}/g, ' ').trim();
+}
+
+const oneLine = headerText;
+
+/** The typed values a template receives, each cleaned to one line (the shop's address keeps its lines). */
+function typed<T extends { shop: ShopInfo }>(d: T): T {
+	const out: Record<string, unknown> = { ...d };
+	for (const [k, v] of Object.entries(d)) if (typeof v === 'string') out[k] = headerText(v);
+	const shop = d.shop;
+	out.shop = {
+		...shop,
+		name: headerText(shop.name),
+		phone: shop.phone && headerText(shop.phone),
+		address: shop.address?.split(/\r?\n/).map(headerText).filter(Boolean).join('\n')
+	};
+	return out as T;
+}
 
 function formatDate(d: Date, shop: ShopInfo) {
 	return new Intl.DateTimeFormat(shop.locale ?? 'en-GB', {
@@ -95,6 +118,7 @@ const listed = (items: string[]) =>
  * there are findings or a quote, only that the phone was received and is being examined.
  */
 export function reportReady(d: ReportReadyData): RenderedMail {
+	d = typed(d);
 	const { findings, photos, quote } = d.has;
 	const parts = [
 		findings && 'our findings',
@@ -189,6 +213,7 @@ export type PaymentReceiptData = {
 
 /** A receipt after a confirmed payment. */
 export function paymentReceipt(d: PaymentReceiptData): RenderedMail {
+	d = typed(d);
 	const amount = formatMoney(d.amountMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB');
 	const when = formatDateTime(d.paidAt, d.shop);
 	const subject = oneLine(`Receipt: ${amount} paid to ${d.shop.name} (job ${d.jobNumber})`);
@@ -226,6 +251,7 @@ export type RefundNoticeData = Omit<PaymentReceiptData, 'paidAt'> & { refundedAt
 
 /** A refund confirmed by the payment service: how much went back, and that banks take a few days. */
 export function refundNotice(d: RefundNoticeData): RenderedMail {
+	d = typed(d);
 	const amount = formatMoney(d.amountMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB');
 	const when = formatDateTime(d.refundedAt, d.shop);
 	const subject = oneLine(`Refund: ${amount} from ${d.shop.name} (job ${d.jobNumber})`);
@@ -272,6 +298,7 @@ export type ReadyToCollectData = {
 
 /** The phone is ready to collect. */
 export function readyToCollect(d: ReadyToCollectData): RenderedMail {
+	d = typed(d);
 	const due =
 		d.amountDueMinor && d.amountDueMinor > 0 && d.currency
 			? formatMoney(d.amountDueMinor, d.currency.toUpperCase(), d.shop.locale ?? 'en-GB')
@@ -309,6 +336,7 @@ export function readyToCollect(d: ReadyToCollectData): RenderedMail {
 
 /** A test message a lead sends from the Outbox to check the mail settings. */
 export function testMessage(d: { shop: ShopInfo; sentBy: string }): RenderedMail {
+	d = typed(d);
 	const subject = oneLine(`Test message from ${d.shop.name}`);
 	const text = `This is a test message sent by ${d.sentBy} from the Tidemark Outbox.\nIf you can read it, the shop's e-mail settings work.\n\n${signatureText(d.shop)}\n`;
 	const html = layout(

@@ -104,7 +104,7 @@ export function buildOpenApiDocument(origin = '') {
 	const guarded = { '401': unauthorised, '403': forbidden };
 	const photoErrors = {
 		'400': reply(
-			'A bad `source`, `caption` or `stepId`, not multipart, or no file part.',
+			'A bad `source`, `caption` or `stepId`, not multipart, no file part, or more than one file (one photo per request).',
 			answers.photoError
 		),
 		'404': reply('No such job or run.', answers.photoError),
@@ -230,7 +230,7 @@ export function buildOpenApiDocument(origin = '') {
 				operationId: 'recordRunEvent',
 				summary: 'Answer, measure or go back at the current step',
 				description:
-					'Re-validated against the machine of the pinned flow version and stored with the snapshot in one transaction. The same `idempotencyKey` again is a no-op that returns the first answer.',
+					'Re-validated against the machine of the pinned flow version and stored with the snapshot in one transaction. The same `idempotencyKey` with the same body again is a no-op that returns the first answer; with a different body it is refused with 422.',
 				requestBody: body(runEventInput),
 				responses: {
 					'200': reply('Applied (or replayed).', runEventResult),
@@ -240,6 +240,7 @@ export function buildOpenApiDocument(origin = '') {
 						'The step is no longer current, the run has finished, or (`code: data-not-secured`) a data-first job must record what became of the data before this step; `state` says where it stands.',
 						runApiError
 					),
+					'422': reply('The idempotency key was already used for a different request.', runApiError),
 					...guarded
 				}
 			}

@@ -34,7 +34,7 @@ export async function answer(work: () => Promise<Response>): Promise<Response> {
 const envelopeSlack = 64 * 1024;
 
 /**
- * Reads a multipart upload with one `file` part and text fields. Refuses before reading the body
+ * Reads a multipart upload with one `file` part (and no other file) and text fields. Refuses before reading the body
  * when the declared length is already too large, so an oversized upload costs no memory.
  */
 export async function readUpload(
@@ -60,6 +60,17 @@ export async function readUpload(
 		return {
 			ok: false,
 			response: fail(400, { message: 'The upload could not be read.', code: 'bad-request' })
+		};
+	}
+	// One photo per request: a second file part was stored nowhere and answered as if it had been.
+	const files = [...form.values()].filter((v) => v instanceof File).length;
+	if (files > 1) {
+		return {
+			ok: false,
+			response: fail(400, {
+				message: `One photo per request: this one carries ${files} files. Send each photo on its own.`,
+				code: 'bad-request'
+			})
 		};
 	}
 	const file = form.get('file');

@@ -98,6 +98,22 @@ beforeAll(async () => {
 });
 
 describe('POST /api/jobs/:id/photos', () => {
+	it('refuses a request carrying more than one file (one photo per request) and stores none of them', async () => {
+		const db = await getDb();
+		const before = (await db.select().from(attachments)).length;
+		const form = new FormData();
+		for (let i = 0; i < 3; i++)
+			form.append('file', new File([await png(64 + 2 * i, 48)], `p${i}.png`, { type: 'image/png' }));
+		form.append('extra', new File([await png(80, 48)], 'other.png', { type: 'image/png' }));
+		const res = await postJob(jobId, { method: 'POST', body: form });
+		expect(res.status).toBe(400);
+		expect(await res.json()).toEqual({
+			message: 'One photo per request: this one carries 4 files. Send each photo on its own.',
+			code: 'bad-request'
+		});
+		expect((await db.select().from(attachments)).length).toBe(before);
+	});
+
 	it('stores a JPEG carrying GPS with every metadata block removed (checked with exifr)', async () => {
 		const input = await jpegWithGps();
 		expect(await exifr.gps(input)).toBeDefined(); // the fixture does carry GPS

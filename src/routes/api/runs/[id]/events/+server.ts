@@ -1,18 +1,22 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
-import { answer, badRequest, readJson } from '$lib/server/runs/http';
+import { answer, badRequest, readJson, type RunApiError } from '$lib/server/runs/http';
+import { claim, keyReusedMessage } from '$lib/server/idempotency';
 import { runEventInput } from '$lib/schemas/run';
 import type { RunEventResult } from '$lib/runs/types';
 import type { RequestHandler } from './$types';
 
-/** 200: the event was applied (or replayed: the same key again returns the same body). */
+/**
+ * 200: the event was applied (or replayed: the same key with the same body returns the same answer);
+ * 422 when the key was used for a different body.
+ */
 export type RunEventResponse = RunEventResult;
 
 /**
  * POST /api/runs/:id/events { type: ANSWER|MEASURE|BACK, stepId, outcome?|value?, idempotencyKey, notes? }
  * 400 bad input or an outcome/reading the pinned flow version refuses; 409 (with `state`) when the
- * step is no longer current or the run has finished; 404 for an unknown run.
+ * step is no longer current or the run has finished; 404 for an unknown run; 422 for a reused key.
  */
 export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'technician');
@@ -20,8 +24,16 @@ export const POST: RequestHandler = async (event) => {
 	if (!read.ok) return read.response;
 	const parsed = runEventInput.safeParse(read.body);
 	if (!parsed.success) return badRequest(parsed.error);
+	const key = await claim(`run-event:${event.params.id}`, parsed.data.idempotencyKey, parsed.data);
+	if (key.status === 'different')
+		return json({ message: keyReusedMessage, code: 'key-reused' } satisfies RunApiError, { status: 422 });
 	return answer(async () => {
-		const result = await runs.recordEvent(event.params.id, parsed.data, user);
-		return json(result satisfies RunEventResponse);
+		try {
+			const result = await runs.recordEvent(event.params.id, parsed.data, user);
+			return json(result satisfies RunEventResponse);
+		} catch (e) {
+			if (key.status === 'new') await key.release();
+			throw e;
+		}
 	});
 };
