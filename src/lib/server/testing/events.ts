@@ -81,3 +81,12 @@ export function chain(...handles: Handle[]): Handle {
 			async (e) => resolve(e)
 		)(event);
 }
+
+/** Auth.js logs every undecryptable (forged) token as an error; the suite makes hundreds on purpose. */
+export function quietAuthLog() {
+	const original = console.error;
+	console.error = (...args: unknown[]) => {
+		if (typeof args[0] === 'string' && args[0].includes('[auth]')) return;
+		original(...args);
+	};
+}

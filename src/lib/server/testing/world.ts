@@ -26,6 +26,8 @@ export type World = {
 	tech: Member;
 	otherTech: Member;
 	senior: Member;
+	/** Wrote the draft: the four-eyes rule keeps an author from approving their own. */
+	author: Member;
 	lead: Member;
 	jobId: string;
 	unassignedJobId: string;
@@ -69,6 +71,7 @@ export async function buildWorld(): Promise<World> {
 	const tech = await member('Mira Saltmarsh', 'mira@shop.test', 'technician');
 	const otherTech = await member('Ilya Brackwater', 'ilya@shop.test', 'technician');
 	const senior = await member('Ness Tiller', 'ness@shop.test', 'senior');
+	const author = await member('Wren Hollowell', 'wren@shop.test', 'senior');
 	const lead = await member('Rook Alderwood', 'rook@shop.test', 'lead');
 
 	const job = await jobs.create(tech.id, intake(1));
@@ -81,7 +84,7 @@ export async function buildWorld(): Promise<World> {
 		{ bytes: await png(), source: 'phone', caption: 'Board' }
 	);
 	const published = await library.currentPublished(FLOW);
-	const draft = await authoring.createDraft(senior, { fromVersionId: published!.id });
+	const draft = await authoring.createDraft(author, { fromVersionId: published!.id });
 	const { token } = await db.transaction((tx) => links.create(tx, job.id, lead.id, 14));
 	const mail = await enqueue(db, {
 		to: 'orla@customer.test',
@@ -93,6 +96,7 @@ export async function buildWorld(): Promise<World> {
 		tech,
 		otherTech,
 		senior,
+		author,
 		lead,
 		jobId: job.id,
 		unassignedJobId: unassigned.id,

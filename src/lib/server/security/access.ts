@@ -1,0 +1,116 @@
+// THE table of who may call what. Every server entry point under src/routes must be listed here
+// (matrix.spec.ts fails on a missing or a stale one), with the least access that may use it:
+//   public      — anyone, signed in or not (the sign-in form, health, the signed payment webhook)
+//   token       — anyone holding a live customer-report link (the customer has no account)
+//   technician  — any signed-in member (roles are cumulative: technician < senior < lead)
+//   senior      — seniors and leads
+//   lead        — leads only
+// The README's Roles section says the same in words.
+import type { Role } from '$lib/roles';
+
+export type Access = 'public' | 'token' | Role;
+
+export const access: Record<string, Access> = {
+	// Signed-in pages
+	'/(app) layout load': 'technician',
+	'/(app) load': 'technician',
+	'/(app)/account load': 'technician',
+	'/(app)/account action password': 'technician',
+	'/(app)/jobs load': 'technician',
+	'/(app)/jobs/new load': 'technician',
+	'/(app)/jobs/new action default': 'technician',
+	'/(app)/jobs/[id] load': 'technician',
+	'/(app)/jobs/[id] action status': 'technician',
+	'/(app)/jobs/[id] action assign': 'technician',
+	'/(app)/jobs/[id] action quote': 'technician',
+	'/(app)/jobs/[id] action sendReport': 'technician',
+	'/(app)/jobs/[id] action revokeLink': 'technician',
+	'/(app)/jobs/[id] action refund': 'lead',
+	'/(app)/jobs/[id] action consent': 'technician',
+	'/(app)/jobs/[id]/checklists load': 'technician',
+	'/(app)/jobs/[id]/checklists action repair': 'technician',
+	'/(app)/jobs/[id]/checklists action functionTest': 'technician',
+	'/(app)/jobs/[id]/checklists action confirm': 'technician',
+	'/(app)/jobs/[id]/label load': 'technician',
+	'/(app)/jobs/[id]/report load': 'technician',
+	'/(app)/runs/[id] load': 'technician',
+	// Flows: everyone reads the library; seniors author, review and publish
+	'/(app)/flows load': 'technician',
+	'/(app)/flows/[id] load': 'technician',
+	'/(app)/flows/[id] action retire': 'senior',
+	'/(app)/flows/[id]/v/[version] load': 'technician',
+	'/(app)/flows/[id]/v/[version]/download GET': 'technician',
+	'/(app)/flows/[id]/diff load': 'senior',
+	'/(app)/flows/[id]/drafts/new load': 'senior',
+	'/(app)/flows/[id]/drafts/new action default': 'senior',
+	'/(app)/flows/[id]/drafts/[draftId] load': 'senior',
+	'/(app)/flows/[id]/drafts/[draftId] PUT': 'senior',
+	'/(app)/flows/[id]/drafts/[draftId] action submit': 'senior',
+	'/(app)/flows/[id]/drafts/[draftId] action approve': 'senior',
+	'/(app)/flows/[id]/drafts/[draftId] action sendBack': 'senior',
+	'/(app)/flows/new load': 'senior',
+	'/(app)/flows/new action blank': 'senior',
+	'/(app)/flows/new action import': 'senior',
+	// The lead's pages
+	'/(app)/insights load': 'lead',
+	'/(app)/outbox load': 'lead',
+	'/(app)/outbox action retry': 'lead',
+	'/(app)/outbox action test': 'lead',
+	'/(app)/outbox/[id] load': 'lead',
+	'/(app)/outbox/[id] action retry': 'lead',
+	'/(app)/settings load': 'lead',
+	'/(app)/settings action default': 'lead',
+	'/(app)/staff load': 'lead',
+	'/(app)/staff action create': 'lead',
+	'/(app)/staff action role': 'lead',
+	'/(app)/staff action disabled': 'lead',
+	'/(app)/staff action reset': 'lead',
+	// Signing in and out
+	'/(auth)/signin load': 'public',
+	'/(auth)/signin action default': 'public',
+	'/(auth)/signout load': 'public',
+	'/(auth)/signout action default': 'public',
+	// The customer's report, by its link
+	'/r/[token] load': 'token',
+	'/r/[token] action approve': 'token',
+	'/r/[token] action decline': 'token',
+	'/r/[token] action pay': 'token',
+	'/r/[token]/photos/[id]/[size] GET': 'token',
+	// Photos as files
+	'/photos/[id]/[size] GET': 'technician',
+	// JSON API
+	'/api/health GET': 'public',
+	'/api/payments/webhook POST': 'public',
+	'/api/openapi.json GET': 'technician',
+	'/api/device-models GET': 'technician',
+	'/api/diagnostics/event-loop GET': 'lead',
+	'/api/diagnostics/event-loop POST': 'lead',
+	'/api/jobs GET': 'technician',
+	'/api/jobs POST': 'technician',
+	'/api/jobs/[id] GET': 'technician',
+	'/api/jobs/[id] PATCH': 'technician',
+	'/api/jobs/[id]/photos GET': 'technician',
+	'/api/jobs/[id]/photos POST': 'technician',
+	'/api/photos/[id] GET': 'technician',
+	'/api/photos/[id] PATCH': 'technician',
+	'/api/photos/[id] DELETE': 'technician',
+	'/api/runs GET': 'technician',
+	'/api/runs POST': 'technician',
+	'/api/runs/[id] GET': 'technician',
+	'/api/runs/[id]/abandon POST': 'technician',
+	'/api/runs/[id]/events POST': 'technician',
+	'/api/runs/[id]/history GET': 'technician',
+	'/api/runs/[id]/photos GET': 'technician',
+	'/api/runs/[id]/photos POST': 'technician',
+	'/api/flows GET': 'technician',
+	'/api/flows/[id]/versions/[version] GET': 'technician',
+	'/api/flows/drafts POST': 'senior',
+	'/api/flows/drafts/[draftId] GET': 'senior',
+	'/api/flows/drafts/[draftId] PUT': 'senior',
+	'/api/flows/drafts/[draftId]/[action] POST': 'senior',
+	'/api/insights/abandoned GET': 'lead',
+	'/api/insights/accuracy GET': 'lead',
+	'/api/insights/durations GET': 'lead',
+	'/api/insights/trend GET': 'lead',
+	'/api/insights/verdicts GET': 'lead'
+};
