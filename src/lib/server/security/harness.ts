@@ -54,7 +54,7 @@ export async function forgedJar(lead: Member): Promise<Jar> {
 }
 
 /** The concrete path and params for a route id, with the world's real ids. */
-export function pathFor(routeId: string, w: World) {
+export function pathFor(routeId: string, w: World, override: Record<string, string> = {}) {
 	const params: Record<string, string> = {};
 	const parts: string[] = [];
 	const segments = routeId.split('/').filter(Boolean);
@@ -62,24 +62,24 @@ export function pathFor(routeId: string, w: World) {
 		if (/^\(.*\)$/.test(seg)) return;
 		const m = /^\[(\w+)\]$/.exec(seg);
 		if (!m) return parts.push(seg);
-		const before = segments[i - 1];
-		const value =
-			m[1] === 'id'
-				? (
-						{ jobs: w.jobId, runs: w.runId, photos: w.photoId, outbox: w.mailId, flows: FLOW } as Record<
-							string,
-							string
-						>
-					)[before]
-				: (
-						{ draftId: w.draftId, version: '1', size: 'thumb', token: w.token, action: 'submit' } as Record<
-							string,
-							string
-						>
-					)[m[1]];
+		const ids: Record<string, string> = {
+			jobs: w.jobId,
+			runs: w.runId,
+			photos: w.photoId,
+			outbox: w.mailId,
+			flows: FLOW
+		};
+		const others: Record<string, string> = {
+			draftId: w.draftId,
+			version: '1',
+			size: 'thumb',
+			token: w.token,
+			action: 'submit'
+		};
+		const value = override[m[1]] ?? (m[1] === 'id' ? ids[segments[i - 1]] : others[m[1]]);
 		if (!value) throw new Error(`no value for ${seg} in ${routeId}`);
 		params[m[1]] = value;
-		parts.push(value);
+		parts.push(encodeURIComponent(value));
 	});
 	return { path: `/${parts.join('/')}`, params };
 }
@@ -128,7 +128,7 @@ export type CallInit = {
 
 /** Calls an entry through the hooks as the holder of `jar`. */
 export async function call(entry: Entry, w: World, init: CallInit = {}): Promise<Outcome> {
-	const { path, params } = pathFor(entry.routeId, w);
+	const { path, params } = pathFor(entry.routeId, w, init.params);
 	const method = entry.kind === 'method' ? entry.name : entry.kind === 'action' ? 'POST' : 'GET';
 	const headers: Record<string, string> = {};
 	let body = init.body;
@@ -139,7 +139,7 @@ export async function call(entry: Entry, w: World, init: CallInit = {}): Promise
 			(entry.kind === 'action' ? 'application/x-www-form-urlencoded' : 'application/json');
 		if (init.contentType === 'multipart') delete headers['content-type'];
 	} else body = undefined;
-	const url = `${init.path ?? path}${entry.kind === 'action' ? `?/${entry.name}` : ''}${init.query ?? ''}`;
+	const url = `${path}${entry.kind === 'action' ? `?/${entry.name}` : ''}${init.query ?? ''}`;
 	const event = makeEvent(url, {
 		method,
 		body,
