@@ -1,5 +1,5 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { createJob, signIn, startRun, testImei, type accounts } from './helpers';
+import { createJob, hydrated, signIn, startRun, testImei, type accounts } from './helpers';
 import { PAYLOADS, xssFlow as payloadFlow } from './xss-flow';
 
 // A new id each time, so the spec can run again against the same server.
@@ -14,7 +14,16 @@ const xssFlow = { ...payloadFlow, id: `xss-payloads-${Date.now().toString(36)}` 
 type Seen = { dialogs: string[] };
 
 async function as(browser: Browser, who: keyof typeof accounts, seen: Seen) {
-	const page = await (await browser.newContext()).newPage();
+	const context = await browser.newContext();
+	// Every content-security-policy violation is kept: zod's eval probe used to report one on each
+	// page that validates (it now runs jitless), and a payload that reached the DOM would report one.
+	await context.addInitScript(() =>
+		document.addEventListener('securitypolicyviolation', (e) => {
+			const w = window as unknown as { __csp?: string[] };
+			(w.__csp ??= []).push(`${e.violatedDirective} ${e.blockedURI}`);
+		})
+	);
+	const page = await context.newPage();
 	page.on('dialog', async (d) => {
 		seen.dialogs.push(d.message());
 		await d.dismiss();
@@ -53,6 +62,13 @@ async function assertInert(page: Page, seen: Seen, where: string) {
 	await page.waitForTimeout(300);
 	expect(await page.evaluate(() => (window as unknown as { __xss?: unknown }).__xss), where).toBeUndefined();
 	expect(seen.dialogs, where).toEqual([]);
+	// zod runs jitless: no page reports an eval attempt any more. (Inline-handler reports from the
+	// payloads in markdown are known: the browser is shown them and the CSP blocks them.)
+	expect((await cspViolations(page)).filter((v) => v.includes('eval')), where).toEqual([]);
+}
+
+async function cspViolations(page: Page) {
+	return page.evaluate(() => (window as unknown as { __csp?: string[] }).__csp ?? []);
 }
 
 test('XSS payloads in flow markdown never run: editor preview, version view, run screen', async ({
@@ -103,3 +119,83 @@ test('XSS payloads in flow markdown never run: editor preview, version view, run
 	await expect(tech.getByRole('heading', { level: 1 })).toHaveText('Payload verdict');
 	await assertInert(tech, seen, 'run screen verdict');
 });
+
+// Script payloads in every free-text field a technician fills (the customer's name, the device,
+// the serial, intake notes, a status note, step notes, a photo caption), rendered on every page that
+// shows them: the job list, the job page, its label, the staff report and the run screen.
+const short = {
+	img: '<img src=x onerror="window.__xss=\'img\'">',
+	svg: '<svg onload="window.__xss=\'svg\'">',
+	script: '<script>window.__xss="script"</script>',
+	tpl: '{{constructor.constructor("window.__xss=1")()}}'
+};
+
+/** The page is inert: nothing ran, no dialog, no CSP report, and no payload became an element. */
+async function assertNothingRan(page: Page, seen: Seen, where: string) {
+	await page.waitForTimeout(300);
+	expect(await page.evaluate(() => (window as unknown as { __xss?: unknown }).__xss), where).toBeUndefined();
+	expect(seen.dialogs, where).toEqual([]);
+	expect(await cspViolations(page), where).toEqual([]);
+	const live = await page.evaluate(() =>
+		[...document.querySelectorAll('img[onerror], svg[onload], [onerror], [onload]')].map((n) => n.outerHTML)
+	);
+	expect(live, where).toEqual([]);
+}
+
+test('script payloads in free-text fields never run: job list, job page, label, report, run screen', async ({
+	browser
+}) => {
+	test.setTimeout(120_000);
+	const seen: Seen = { dialogs: [] };
+	const tech = await as(browser, 'tech', seen);
+	const job = await createJob(tech, {
+		customerName: `Pim ${short.img}`,
+		maker: `Corvana ${short.svg}`,
+		model: `Tern ${short.script}`,
+		serial: '<svg onload=alert(1)>',
+		imei: testImei('0067'),
+		notes: [...PAYLOADS, short.tpl].join('\n'),
+		symptoms: ['restart-loop']
+	});
+	const detail = (await (await tech.request.get(`/api/jobs/${job}`)).json()) as { next: string[] };
+	const moved = await tech.request.patch(`/api/jobs/${job}`, {
+		data: { status: detail.next[0], note: `${short.img} ${short.script}` }
+	});
+	expect(moved.status(), await moved.text()).toBe(200);
+	const run = await startRun(tech, job, 'restart-loop-after-liquid');
+	const answered = await tech.request.post(`/api/runs/${run}/events`, {
+		data: {
+			type: 'ANSWER',
+			stepId: 'power-on-as-received',
+			outcome: 0,
+			idempotencyKey: `xss-${Date.now()}`,
+			notes: `${short.img} ${short.svg} ${short.tpl}`
+		}
+	});
+	expect(answered.status(), await answered.text()).toBe(200);
+	const photo = await tech.request.post(`/api/jobs/${job}/photos`, {
+		headers: { origin: new URL(tech.url()).origin }, // SvelteKit's CSRF check wants it on multipart posts
+		multipart: {
+			file: { name: `${short.img}.png`, mimeType: 'image/png', buffer: await tinyPng() },
+			caption: `${short.svg} ${short.script}`,
+			source: 'phone'
+		}
+	});
+	expect(photo.status(), await photo.text()).toBe(201);
+
+	for (const path of ['/jobs', `/jobs/${job}`, `/jobs/${job}/label`, `/jobs/${job}/report`, `/runs/${run}`]) {
+		await tech.goto(path);
+		await hydrated(tech);
+		await assertNothingRan(tech, seen, path);
+	}
+	// The payloads are shown, as text.
+	await tech.goto(`/jobs/${job}`);
+	await expect(tech.getByText(`Pim ${short.img}`).first()).toBeVisible();
+});
+
+async function tinyPng() {
+	const { default: sharp } = await import('sharp');
+	return sharp({ create: { width: 32, height: 24, channels: 3, background: { r: 10, g: 90, b: 160 } } })
+		.png()
+		.toBuffer();
+}

@@ -123,7 +123,8 @@ export type CallInit = {
 	body?: BodyInit | null;
 	contentType?: string;
 	query?: string;
-	path?: string;
+	/** Route parameters to use instead of the world's (the path follows them). */
+	params?: Record<string, string>;
 };
 
 /** Calls an entry through the hooks as the holder of `jar`. */
