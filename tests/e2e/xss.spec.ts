@@ -64,7 +64,10 @@ async function assertInert(page: Page, seen: Seen, where: string) {
 	expect(seen.dialogs, where).toEqual([]);
 	// zod runs jitless: no page reports an eval attempt any more. (Inline-handler reports from the
 	// payloads in markdown are known: the browser is shown them and the CSP blocks them.)
-	expect((await cspViolations(page)).filter((v) => v.includes('eval')), where).toEqual([]);
+	expect(
+		(await cspViolations(page)).filter((v) => v.includes('eval')),
+		where
+	).toEqual([]);
 }
 
 async function cspViolations(page: Page) {

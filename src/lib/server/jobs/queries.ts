@@ -286,9 +286,7 @@ export async function get(id: string): Promise<JobDetail | undefined> {
 
 /** Locks the job row for the rest of the transaction (runs use it too). */
 export async function lockJob(tx: Tx, id: string): Promise<Job> {
-	const [job] = isUuid(id)
-		? await tx.select().from(jobs).where(eq(jobs.id, id)).for('update')
-		: [];
+	const [job] = isUuid(id) ? await tx.select().from(jobs).where(eq(jobs.id, id)).for('update') : [];
 	if (!job) throw new JobRuleError('not-found', 'No job with this id.');
 	return job;
 }

@@ -196,8 +196,10 @@ describe('typed values in headers and plain text', () => {
 		});
 		expect(mail.subject).toBe('Your Corvana Tern 6 — findings and quote (job J-0042)');
 		expect(mail.text).toContain('Hello Quinn Bcc: x@evil.test [31m Tail,');
+		// eslint-disable-next-line no-control-regex -- looking for exactly these characters
 		expect(mail.text).not.toMatch(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u2028\u2029]/);
 		expect(mail.text).not.toMatch(/^Bcc:|^X-Injected:/m);
+		// eslint-disable-next-line no-control-regex -- looking for exactly these characters
 		expect(mail.html).not.toMatch(/[\u0000\u001b\u0085\u2028]/);
 	});
 });
