@@ -192,7 +192,8 @@ describe('typed values in headers and plain text', () => {
 			jobNumber: 'J-0042',
 			device: 'Corvana\nTern 6',
 			reportUrl: 'https://shop.example.test/r/abc',
-			expiresAt: new Date('2026-12-16T12:00:00Z')
+			expiresAt: new Date('2026-12-16T12:00:00Z'),
+			has: { findings: true, photos: true, quote: true }
 		});
 		expect(mail.subject).toBe('Your Corvana Tern 6 — findings and quote (job J-0042)');
 		expect(mail.text).toContain('Hello Quinn Bcc: x@evil.test [31m Tail,');
