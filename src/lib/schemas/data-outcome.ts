@@ -1,5 +1,6 @@
 /** PUT /api/jobs/:id/data — what became of the customer's data (src/lib/domain/data-first.ts). */
 import { z } from 'zod';
+import { storable, unstorableMessage } from '$lib/schemas/text';
 import { dataOutcomes } from '$lib/domain/data-first';
 
 export const dataOutcomeInput = z.object({
@@ -8,6 +9,7 @@ export const dataOutcomeInput = z.object({
 	}),
 	note: z
 		.string({ error: 'Add a note.' })
+		.refine(storable, { error: unstorableMessage('The note') })
 		.trim()
 		.min(3, 'Add a note: where the backup went, or why there is none.')
 		.max(1000, 'Keep the note under 1000 characters.'),

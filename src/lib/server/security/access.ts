@@ -27,6 +27,7 @@ export const access: Record<string, Access> = {
 	'/(app)/jobs/[id] action revokeLink': 'technician',
 	'/(app)/jobs/[id] action refund': 'lead',
 	'/(app)/jobs/[id] action consent': 'technician',
+	'/(app)/jobs/[id] action dataOutcome': 'technician',
 	'/(app)/jobs/[id]/checklists load': 'technician',
 	'/(app)/jobs/[id]/checklists action repair': 'technician',
 	'/(app)/jobs/[id]/checklists action functionTest': 'technician',
