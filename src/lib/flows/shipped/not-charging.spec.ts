@@ -99,6 +99,6 @@ describe('not charging after liquid, version 2', () => {
 			{ type: 'ANSWER', outcome: 'Charges, but the phone still does not start' }
 		]);
 		expect(route.verdict).toBe('charges-but-no-boot');
-		expect(text('charges-but-no-boot')).toMatch(/no-power flow/);
+		expect(text('charges-but-no-boot')).toMatch(/no power or no boot after liquid/);
 	});
 });
