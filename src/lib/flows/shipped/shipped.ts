@@ -101,23 +101,3 @@ export function walkVia(def: FlowDefinition, target: string, more: FlowEvent[] =
 	if (!events) throw new Error(`${def.id}: no route from the start to "${target}"`);
 	return walk(def, [...events, ...more]);
 }
-
-/** Hazard words and the cautions they need (FLOW-RULES rule 3, read as written). */
-export const HAZARDS: [RegExp, string[]][] = [
-	[/hot air|hot-air|reflow|preheat/, ['hot-air', 'battery']],
-	[/solder|flux|wick|reball/, ['flux-fume', 'lead', 'eye']],
-	[/isopropyl|alcohol/, ['solvent']],
-	[/\buv\b|uv-|solder mask/, ['uv', 'uv-resin']],
-	[/freeze spray/, ['freeze-spray']],
-	[/ultrasonic/, ['ultrasonic']],
-	[/bench supply|bench power supply/, ['bench-supply']],
-	[/\bpry|prying|open the phone/, ['eye']],
-	[/charger|charging/, ['charging-wet']],
-	[/electrolyte/, ['electrolyte']]
-];
-
-/** Words that mean soldering or hot air: a verdict using them is board-level work (rule 4). */
-export const HEAT_WORK = /hot air|hot-air|reflow|preheat|solder|flux|wick|reball/;
-
-/** A number with a unit, as FLOW-RULES rule 1 lists them. */
-export const NUMBER_WITH_UNIT = /\d\s?(°c|k|v|mv|a|ma|µa|ω|w|s|min|h|%|ppm|mm|m)(?![a-z])/;
