@@ -76,7 +76,7 @@ test('a technician gets the past runs from the step a new run stands on', async 
 	const res = await page.request.get(`/api/runs/${runId}/history`);
 	expect(res.status()).toBe(200);
 	const history = await res.json();
-	expect(history.stepId).toBe('power-on-as-received');
+	expect(history.stepId).toBe('liquid-contact');
 	expect(history.runs).toBeGreaterThanOrEqual(5);
 	expect(history.verdicts.length).toBeGreaterThan(0);
 	for (const v of history.verdicts) expect(v.lower).toBeLessThanOrEqual(v.share);

@@ -66,7 +66,7 @@ describe('diffVersions', () => {
 		expect(target).toEqual({
 			field: 'outcomes[1].next',
 			label: 'Answer 2 ("Stays dark and gets warm"): next step',
-			before: 'open-and-disconnect',
+			before: 'warm-open',
 			after: 'standby-current'
 		});
 		expect(d.unchanged).toBe(Object.keys(base.steps).length - 3);

@@ -89,17 +89,19 @@ describe('layoutFlow', () => {
 	});
 
 	it('numbers the answers of one step that lead to the same step, so their labels can take turns', () => {
+		// A step whose first two answers lead to different steps (the start's all lead to one).
+		const fork = 'power-on-as-received';
 		const twice = must(
-			setExit(def, def.start, 1, {
-				next: layout.edges.find((e) => e.source === def.start && e.index === 0)!.target
+			setExit(def, fork, 1, {
+				next: layout.edges.find((e) => e.source === fork && e.index === 0)!.target
 			})
 		);
-		const edges = layoutFlow(twice).edges.filter((e) => e.source === def.start);
+		const edges = layoutFlow(twice).edges.filter((e) => e.source === fork);
 		expect(edges.slice(0, 2).map((e) => [e.slot, e.slots])).toEqual([
 			[0, 2],
 			[1, 2]
 		]);
-		for (const e of layout.edges.filter((x) => x.source !== def.start))
+		for (const e of layout.edges.filter((x) => x.source !== fork))
 			expect(e.slots).toBeGreaterThanOrEqual(1);
 	});
 

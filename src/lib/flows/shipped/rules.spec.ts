@@ -6,7 +6,13 @@
 import { describe, expect, it } from 'vitest';
 import { flat, loadShipped, reachableAvoiding, verdicts } from './load';
 
-const FLOWS = ['restart-loop-after-liquid', 'face-unlock-after-liquid', 'no-sound-after-liquid'] as const;
+const FLOWS = [
+	'restart-loop-after-liquid',
+	'face-unlock-after-liquid',
+	'no-sound-after-liquid',
+	'no-power-after-liquid',
+	'not-charging-after-liquid'
+] as const;
 
 /** A number with one of the units FLOW-RULES rule 1 lists. */
 const NUMBER_WITH_UNIT = /\d(?:[\d.,]*\d)?\s?(?:°C|K|V|mV|A|mA|µA|Ω|W|s|min|h|%|ppm|mm|m)(?![\p{L}\d])/iu;
