@@ -90,6 +90,7 @@ export const access: Record<string, Access> = {
 	'/api/jobs POST': 'technician',
 	'/api/jobs/[id] GET': 'technician',
 	'/api/jobs/[id] PATCH': 'technician',
+	'/api/jobs/[id]/data PUT': 'technician',
 	'/api/jobs/[id]/photos GET': 'technician',
 	'/api/jobs/[id]/photos POST': 'technician',
 	'/api/photos/[id] GET': 'technician',

@@ -28,6 +28,9 @@ export const samples: Record<string, (w: World) => Promise<Sample> | Sample> = {
 		}
 	}),
 	'/api/jobs/[id] PATCH': (w) => ({ body: { technicianId: w.tech.id } }),
+	'/api/jobs/[id]/data PUT': () => ({
+		body: { outcome: 'backed-up', note: "Copied to the customer's own storage" }
+	}),
 	'/api/runs POST': (w) => ({ body: { jobId: w.unassignedJobId, flowId: FLOW } }),
 	'/api/runs/[id]/events POST': () => ({
 		body: {
