@@ -47,7 +47,7 @@ function anonymousEvent(file: string, method: string) {
 		throw new Error('touched the request before its guard');
 	};
 	return {
-		locals: { user: null },
+		locals: { user: null } as unknown as App.Locals,
 		url,
 		params,
 		route: { id: routeId },
