@@ -1,6 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
-import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import { answer, badRequest, readJson } from '$lib/server/runs/http';
 import { runEventInput } from '$lib/schemas/run';
 import type { RunEventResult } from '$lib/runs/types';
@@ -21,7 +21,7 @@ export const POST: RequestHandler = async (event) => {
 	const parsed = runEventInput.safeParse(read.body);
 	if (!parsed.success) return badRequest(parsed.error);
 	return answer(async () => {
-		const result = await runs.recordEvent(event.params.id, parsed.data, user);
+		const result = await recordEvent(event.params.id, parsed.data, user);
 		return json(result satisfies RunEventResponse);
 	});
 };
