@@ -39,7 +39,13 @@ export async function recordEvent(
 ): Promise<RunEventResult> {
 	if (!isUuid(runId)) throw new RunRuleError(404, 'not-found', 'No run with this id.');
 	const db = await getDb();
-	return db.transaction((tx) => decide(tx, runId, event, actor));
+	return db.transaction(async (tx) => {
+		// PGlite answers on the main thread without real I/O, so queued transactions would follow one
+		// another in microtasks and starve timers and sockets; one turn of the event loop per event
+		// keeps the server responsive (bench/runs: longest stall).
+		await new Promise((resolve) => setImmediate(resolve));
+		return decide(tx, runId, event, actor);
+	});
 }
 
 async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor): Promise<RunEventResult> {
