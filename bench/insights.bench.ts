@@ -5,7 +5,7 @@
 // 2. Why the facts are copied into memory: the same grouping done in SQL on insight_run_facts.
 // 3. Step-event p95 of 16 technicians while a lead reloads the dashboard in a loop (goal <= 25 ms),
 //    in one process: both share Node's main thread exactly as in the server (no HTTP here; the
-//    HTTP round trip of step events is measured by bench/runs.bench.mjs).
+//    HTTP round trip of step events is measured by bench/runs.bench.ts).
 // The history comes from the demo generator (src/lib/server/insights/demo-history.ts). Generating
 // 100,000 runs takes several minutes; BENCH_INSIGHTS_DIR keeps the PGlite folder between runs.
 // BENCH_INSIGHTS_RUNS changes the size.
@@ -85,6 +85,7 @@ try {
 	const { getDb, getHandle } = await load('/src/lib/server/db/index.ts');
 	const { sql } = await import('drizzle-orm');
 	const runsQ = await load('/src/lib/server/runs/queries.ts');
+	const { recordEvent } = await load('/src/lib/server/runs/commit.ts');
 	const jobsQ = await load('/src/lib/server/jobs/queries.ts');
 	const staffQ = await load('/src/lib/server/staff/queries.ts');
 	const { makeJobIntake } = await load('/src/lib/schemas/job.ts');
@@ -207,13 +208,9 @@ try {
 			})
 		);
 		const run = await runsQ.start(job.id, 'restart-loop-after-liquid', techUser);
-		// Walk to "clean-and-dry", whose "dry longer" answer loops back to itself (as bench/runs.bench.mjs).
+		// Walk to "clean-and-dry", whose "dry longer" answer loops back to itself (as bench/runs.bench.ts).
 		for (const [stepId, outcome] of toCleanAndDry)
-			await runsQ.recordEvent(
-				run.id,
-				{ type: 'ANSWER', stepId, outcome, idempotencyKey: randomUUID() },
-				techUser
-			);
+			await recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: randomUUID() }, techUser);
 		runIds.push(run.id);
 	}
 	/** 16 technicians send events back to back (paceMs 0) or each one every paceMs. */
@@ -234,7 +231,7 @@ try {
 				if (paceMs > 0) await new Promise((r) => setTimeout(r, Math.max(0, due - performance.now())));
 				else await new Promise((r) => setImmediate(r)); // the gap a network round trip would leave
 				if (stop) break;
-				await runsQ.recordEvent(
+				await recordEvent(
 					runId,
 					back
 						? { type: 'BACK', stepId: 'clean-and-dry', idempotencyKey: randomUUID() }

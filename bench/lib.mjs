@@ -23,12 +23,12 @@ export const freePort = () =>
 		});
 	});
 
-/** Starts `node build`; resolves once /api/health answers 200, with the ms from spawn to that answer. */
-export async function startServer({ port, dataDir, env = {} }) {
+/** Starts `node build` (or another build folder); resolves once /api/health answers 200, with the ms from spawn to that answer. */
+export async function startServer({ port, dataDir, build = 'build', env = {} }) {
 	const t0 = performance.now();
 	// BENCH_SERVER_NODE_ARGS (e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof") profiles the server.
 	const nodeArgs = (process.env.BENCH_SERVER_NODE_ARGS ?? '').split(' ').filter(Boolean);
-	const child = spawn(process.execPath, [...nodeArgs, 'build'], {
+	const child = spawn(process.execPath, [...nodeArgs, build], {
 		env: {
 			...process.env,
 			PORT: String(port),

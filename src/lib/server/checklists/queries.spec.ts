@@ -11,6 +11,7 @@ import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import { makeJobIntake } from '$lib/schemas/job';
 import * as checklists from './queries';
 import { ChecklistRuleError, FUNCTION_TESTS, repairItems } from './queries';
@@ -45,7 +46,7 @@ async function repairingJob() {
 		})
 	);
 	const run = await runs.start(job.id, FLOW, tech);
-	await runs.recordEvent(
+	await recordEvent(
 		run.id,
 		{
 			type: 'ANSWER',

@@ -10,6 +10,7 @@ import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import { makeJobIntake } from '$lib/schemas/job';
 import * as insights from './queries';
 
@@ -63,7 +64,7 @@ describe('facts written by the runs code', () => {
 		const run = await startRun();
 		expect(await factOf(run.id)).toBeUndefined();
 		// "Does not restart on the bench" (third answer) is a verdict straight away.
-		await runs.recordEvent(
+		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 2, idempotencyKey: `k-${run.id}` },
 			tech

@@ -12,6 +12,7 @@ import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import * as runs from './queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import { toCleanAndDry } from './walks';
 
 // Two events for the same run at the same moment, on a PostgreSQL server, where transactions really
@@ -64,14 +65,14 @@ describe.runIf(url)('step events side by side on PostgreSQL', () => {
 		);
 		const run = await runs.start(job.id, FLOW, tech);
 		for (const [stepId, outcome] of toCleanAndDry)
-			await runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: randomUUID() }, tech);
+			await recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: randomUUID() }, tech);
 		return run.id;
 	}
 
 	it('numbers two valid events one after the other instead of failing on a duplicate step number', async () => {
 		const runId = await runAtCleanAndDry();
 		const dryLonger = () =>
-			runs.recordEvent(
+			recordEvent(
 				runId,
 				{ type: 'ANSWER', stepId: 'clean-and-dry', outcome: 1, idempotencyKey: randomUUID() },
 				tech
@@ -86,11 +87,7 @@ describe.runIf(url)('step events side by side on PostgreSQL', () => {
 		const runId = await runAtCleanAndDry();
 		const key = randomUUID();
 		const send = () =>
-			runs.recordEvent(
-				runId,
-				{ type: 'ANSWER', stepId: 'clean-and-dry', outcome: 1, idempotencyKey: key },
-				tech
-			);
+			recordEvent(runId, { type: 'ANSWER', stepId: 'clean-and-dry', outcome: 1, idempotencyKey: key }, tech);
 		const [a, b] = await Promise.all([send(), send()]);
 		expect(b).toEqual(a);
 		const db = await getDb();

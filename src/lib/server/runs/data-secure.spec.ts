@@ -18,6 +18,7 @@ import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import { PUT as putData } from '../../../routes/api/jobs/[id]/data/+server';
 import { actions as jobPage } from '../../../routes/(app)/jobs/[id]/+page.server';
 import * as runs from './queries';
+import { recordEvent } from './commit';
 import { RunRuleError } from './queries';
 
 // Real in-memory PGlite (DATA_DIR=memory://). The flow is the data-first fixture
@@ -57,7 +58,7 @@ async function newRun(over: Partial<JobIntake> = {}) {
 }
 
 const answer = (runId: string, stepId: string, outcome: number) =>
-	runs.recordEvent(runId, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
+	recordEvent(runId, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
 
 async function refusal(p: Promise<unknown>): Promise<RunRuleError> {
 	const e = await p.then(
@@ -160,7 +161,7 @@ describe('the data-first gate on step events', () => {
 
 		const other = (await newRun()).run;
 		await answer(other.id, 'boots', 0);
-		const back = await runs.recordEvent(
+		const back = await recordEvent(
 			other.id,
 			{ type: 'BACK', stepId: 'inspect', idempotencyKey: key() },
 			tech

@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq, sql } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { auditLog } from '$lib/server/db/schema';
@@ -12,6 +12,7 @@ import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import * as runs from './queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import { RunRuleError } from './queries';
 import { toCleanAndDry } from './walks';
 
@@ -116,7 +117,7 @@ describe('starting a run', () => {
 describe('events', () => {
 	it('walks to a verdict, records that the data is reachable and completes the run', async () => {
 		const { job, run } = await newRun();
-		const r = await runs.recordEvent(
+		const r = await recordEvent(
 			run.id,
 			{
 				type: 'ANSWER',
@@ -157,7 +158,7 @@ describe('events', () => {
 		const { run } = await newRun();
 		for (const outcome of [4, -1, 'Explodes']) {
 			const e = await refusal(
-				runs.recordEvent(
+				recordEvent(
 					run.id,
 					{ type: 'ANSWER', stepId: 'power-on-as-received', outcome, idempotencyKey: key() },
 					tech
@@ -167,7 +168,7 @@ describe('events', () => {
 			expect(e.message).toContain('1 Restarts again and again');
 		}
 		const e = await refusal(
-			runs.recordEvent(
+			recordEvent(
 				run.id,
 				{ type: 'MEASURE', stepId: 'power-on-as-received', value: 1, idempotencyKey: key() },
 				tech
@@ -177,11 +178,7 @@ describe('events', () => {
 		expect(
 			(
 				await refusal(
-					runs.recordEvent(
-						run.id,
-						{ type: 'BACK', stepId: 'power-on-as-received', idempotencyKey: key() },
-						tech
-					)
+					recordEvent(run.id, { type: 'BACK', stepId: 'power-on-as-received', idempotencyKey: key() }, tech)
 				)
 			).status
 		).toBe(400);
@@ -190,13 +187,13 @@ describe('events', () => {
 
 	it('answers 409 with the current state for a step that is no longer current', async () => {
 		const { run } = await newRun();
-		await runs.recordEvent(
+		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
 			tech
 		);
 		const e = await refusal(
-			runs.recordEvent(
+			recordEvent(
 				run.id,
 				{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 1, idempotencyKey: key() },
 				tech
@@ -212,11 +209,11 @@ describe('events', () => {
 		const { run } = await newRun();
 		const k = key();
 		const event = { type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: k } as const;
-		const first = await runs.recordEvent(run.id, event, tech);
+		const first = await recordEvent(run.id, event, tech);
 		const before = await stepRows(run.id);
 		const [runBefore] = await (await getDb()).select().from(runsTable).where(eq(runsTable.id, run.id));
 		// The same key again, even after the run moved on, returns the stored answer unchanged.
-		const again = await runs.recordEvent(run.id, event, tech);
+		const again = await recordEvent(run.id, event, tech);
 		expect(again).toEqual(first);
 		expect(await stepRows(run.id)).toEqual(before);
 		const [runAfter] = await (await getDb()).select().from(runsTable).where(eq(runsTable.id, run.id));
@@ -227,7 +224,7 @@ describe('events', () => {
 	it('routes a reading by its range and refuses one outside the valid readings with the reason', async () => {
 		const { run } = await newRun();
 		const answer = (stepId: string, outcome: number) =>
-			runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
+			recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
 		await answer('power-on-as-received', 0);
 		await answer('open-and-disconnect', 1);
 		await answer('inspect-front-area', 0);
@@ -235,7 +232,7 @@ describe('events', () => {
 		expect(r.state).toMatchObject({ currentStep: 'front-connector-diode', dataReachable: true });
 		// The step's domain is 0–3 V (flow file); 5 V is refused with the machine's own words.
 		const e = await refusal(
-			runs.recordEvent(
+			recordEvent(
 				run.id,
 				{ type: 'MEASURE', stepId: 'front-connector-diode', value: 5, idempotencyKey: key() },
 				tech
@@ -243,7 +240,7 @@ describe('events', () => {
 		);
 		expect(e.status).toBe(400);
 		expect(e.message).toBe('A reading above 3 V is not possible here.');
-		const ok = await runs.recordEvent(
+		const ok = await recordEvent(
 			run.id,
 			{ type: 'MEASURE', stepId: 'front-connector-diode', value: 0.01, idempotencyKey: key() },
 			tech
@@ -260,23 +257,23 @@ describe('events', () => {
 
 	it('BACK keeps the revised answer in the trail, marked superseded, and returns to its step', async () => {
 		const { run } = await newRun();
-		await runs.recordEvent(
+		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
 			tech
 		);
-		await runs.recordEvent(
+		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'open-and-disconnect', outcome: 1, idempotencyKey: key() },
 			tech
 		);
-		const back = await runs.recordEvent(
+		const back = await recordEvent(
 			run.id,
 			{ type: 'BACK', stepId: 'inspect-front-area', idempotencyKey: key() },
 			tech
 		);
 		expect(back.state.currentStep).toBe('open-and-disconnect');
-		await runs.recordEvent(
+		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'open-and-disconnect', outcome: 0, idempotencyKey: key() },
 			tech
@@ -299,7 +296,7 @@ describe('events', () => {
 	it('BACK after BACK, and BACK after a new answer, each revise the newest answer still standing', async () => {
 		const { run } = await newRun();
 		const send = (type: 'ANSWER' | 'BACK', stepId: string, outcome = 0) =>
-			runs.recordEvent(
+			recordEvent(
 				run.id,
 				type === 'ANSWER'
 					? { type, stepId, outcome, idempotencyKey: key() }
@@ -336,7 +333,7 @@ describe('events', () => {
 		});
 		expect(abandoned.finishedAt).toBeInstanceOf(Date);
 		const e = await refusal(
-			runs.recordEvent(
+			recordEvent(
 				run.id,
 				{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
 				tech
@@ -348,33 +345,33 @@ describe('events', () => {
 });
 
 describe('transactions', () => {
-	it('leaves no half-written event when the step row fails after the run row was updated', async () => {
+	it('leaves no half-written event when the run row fails after the step row was written', async () => {
 		const { run } = await newRun();
 		const db = await getDb();
-		// A trigger makes the INSERT of the step row fail, after the run row was updated in the same
-		// statement.
+		// A trigger makes the UPDATE of the run row fail, after the step row was inserted in the same
+		// transaction.
 		await db.execute(sql`create function tm_fail_step_insert() returns trigger language plpgsql as
-			$$ begin raise exception 'forced failure after the run update'; end $$`);
+			$$ begin raise exception 'forced failure after the step insert'; end $$`);
 		await db.execute(
-			sql`create trigger tm_fail before insert on run_steps for each row execute function tm_fail_step_insert()`
+			sql`create trigger tm_fail before update on runs for each row execute function tm_fail_step_insert()`
 		);
 		try {
 			await expect(
-				runs.recordEvent(
+				recordEvent(
 					run.id,
 					{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
 					tech
 				)
 			).rejects.toThrow();
 		} finally {
-			await db.execute(sql`drop trigger tm_fail on run_steps`);
+			await db.execute(sql`drop trigger tm_fail on runs`);
 			await db.execute(sql`drop function tm_fail_step_insert()`);
 		}
 		expect(await stepRows(run.id)).toEqual([]);
 		const detail = await runs.get(run.id);
 		expect(detail!.currentStep).toBe('power-on-as-received');
 		// The same event goes through once the fault is gone.
-		const ok = await runs.recordEvent(
+		const ok = await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
 			tech
@@ -383,19 +380,17 @@ describe('transactions', () => {
 	});
 });
 
-// Events are read (or their run's standing remembered), checked, and written by one conditional
-// statement per group; one that lost a race to another change of the same run is decided again
-// under the run's lock. These send events side by side, or put another change between an event's
-// read and its write.
+// Each event is decided in its own transaction under its run's row lock (commit.ts): events of one
+// run sent side by side are decided one after the other, each against what the last one wrote.
 describe('events that race', () => {
 	async function atCleanAndDry() {
 		const { run } = await newRun();
 		for (const [stepId, outcome] of toCleanAndDry)
-			await runs.recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
+			await recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
 		return run.id;
 	}
 	const event = (runId: string, type: 'ANSWER' | 'BACK', idempotencyKey = key()) =>
-		runs.recordEvent(
+		recordEvent(
 			runId,
 			type === 'ANSWER'
 				? { type, stepId: 'clean-and-dry', outcome: 1, idempotencyKey }
@@ -425,37 +420,14 @@ describe('events that race', () => {
 		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'same-key')).toHaveLength(1);
 	});
 
-	/**
-	 * Runs `meanwhile` after the event's read and before its write: the write is the only
-	 * `db.execute` an event that does not reach a verdict makes outside a transaction.
-	 */
-	async function between<T>(meanwhile: () => Promise<unknown>, send: () => Promise<T>): Promise<T> {
-		const db = await getDb();
-		const execute = db.execute.bind(db);
-		// db.execute returns a lazy query (a thenable); the stand-in returns a plain promise of its result.
-		const spy = vi
-			.spyOn(db, 'execute')
-			.mockImplementationOnce(((query: Parameters<typeof execute>[0]) =>
-				meanwhile().then(() => execute(query))) as unknown as typeof execute);
-		try {
-			return await send();
-		} finally {
-			spy.mockRestore();
-		}
-	}
-
-	it('a BACK that finds the run moved on by another BACK after its read is refused; one answer is revised', async () => {
+	it('of two BACKs sent together from the same step one lands; the other finds the run moved on', async () => {
 		const runId = await atCleanAndDry();
-		let first: Awaited<ReturnType<typeof event>> | undefined;
-		const late = await refusal(
-			between(
-				async () => (first = await event(runId, 'BACK')),
-				() => event(runId, 'BACK')
-			)
-		);
-		expect(first?.state.currentStep).toBe('isolate-other-modules');
-		expect(late).toMatchObject({ status: 409, code: 'stale-step' });
-		expect(late.state?.currentStep).toBe('isolate-other-modules');
+		const [a, b] = await Promise.allSettled([event(runId, 'BACK'), event(runId, 'BACK')]);
+		const landed = [a, b].filter((r) => r.status === 'fulfilled');
+		const late = [a, b].find((r) => r.status === 'rejected');
+		expect(landed).toHaveLength(1);
+		expect(late?.reason).toMatchObject({ status: 409, code: 'stale-step' });
+		expect((late?.reason as RunRuleError).state?.currentStep).toBe('isolate-other-modules');
 		const rows = await stepRows(runId);
 		expect(rows.filter((r) => r.kind === 'back')).toHaveLength(1);
 		expect(rows.filter((r) => r.supersededAt !== null).map((r) => r.stepId)).toEqual([
@@ -463,66 +435,27 @@ describe('events that race', () => {
 		]);
 	});
 
-	it('an answer whose run was abandoned after its read is refused and not stored; the run stays abandoned', async () => {
+	it('an answer sent with an abandon lands before it or is refused; the run ends abandoned either way', async () => {
 		const runId = await atCleanAndDry();
-		const late = await refusal(
-			between(
-				() => runs.abandon(runId, 'Customer collected the phone', tech),
-				() => event(runId, 'ANSWER')
-			)
-		);
-		expect(late).toMatchObject({ status: 409, code: 'run-finished' });
-		expect(await stepRows(runId)).toHaveLength(5);
+		const [answered] = await Promise.allSettled([
+			event(runId, 'ANSWER'),
+			runs.abandon(runId, 'Customer collected the phone', tech)
+		]);
+		const rows = await stepRows(runId);
+		if (answered.status === 'fulfilled') expect(rows).toHaveLength(6);
+		else {
+			expect(answered.reason).toMatchObject({ status: 409, code: 'run-finished' });
+			expect(rows).toHaveLength(5);
+		}
 		expect((await runs.get(runId))!.status).toBe('abandoned');
 	});
 
-	it('an answer whose key was stored by a copy of it after its read returns the stored result', async () => {
+	it('a key answered once returns the stored result even after the run moved on', async () => {
 		const runId = await atCleanAndDry();
-		let first: Awaited<ReturnType<typeof event>> | undefined;
-		const again = await between(
-			async () => (first = await event(runId, 'ANSWER', 'twice')),
-			() => event(runId, 'ANSWER', 'twice')
-		);
-		expect(again).toEqual(first);
+		const first = await event(runId, 'ANSWER', 'twice');
+		await event(runId, 'BACK');
+		expect(await event(runId, 'ANSWER', 'twice')).toEqual(first);
 		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'twice')).toHaveLength(1);
-	});
-
-	it('events sent together share one read; a run abandoned while it runs still gets its own answer', async () => {
-		// The first run was just answered here, so its state is remembered and not read; the second
-		// run has never been answered, so the group reads it, and the first run is abandoned meanwhile.
-		const remembered = await atCleanAndDry();
-		const { run: fresh } = await newRun();
-		const db = await getDb();
-		const select = db.select.bind(db);
-		const reads = vi.spyOn(db, 'select');
-		reads.mockImplementationOnce(((fields: Parameters<typeof select>[0]) => {
-			const query = select(fields);
-			return {
-				from: (table: Parameters<typeof query.from>[0]) => ({
-					where: (where: Parameters<ReturnType<typeof query.from>['where']>[0]) =>
-						runs
-							.abandon(remembered, 'Customer collected the phone', tech)
-							.then(() => query.from(table).where(where))
-				})
-			};
-		}) as unknown as typeof select);
-		try {
-			const [late, first] = await Promise.allSettled([
-				event(remembered, 'ANSWER'),
-				runs.recordEvent(
-					fresh.id,
-					{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: key() },
-					tech
-				)
-			]);
-			expect(reads).toHaveBeenCalledTimes(1);
-			expect(first.status).toBe('fulfilled');
-			expect(late.status === 'rejected' && late.reason).toMatchObject({ status: 409, code: 'run-finished' });
-		} finally {
-			reads.mockRestore();
-		}
-		expect(await stepRows(remembered)).toHaveLength(5);
-		expect(await stepRows(fresh.id)).toHaveLength(1);
 	});
 });
 
@@ -536,7 +469,7 @@ describe('pinned version', () => {
 		expect(report.imported).toMatchObject([{ flowId: FLOW, version: 2 }]);
 
 		// The old run still speaks version 1's words …
-		const r = await runs.recordEvent(
+		const r = await recordEvent(
 			run.id,
 			{
 				type: 'ANSWER',
@@ -555,7 +488,7 @@ describe('pinned version', () => {
 		const { run: fresh } = await newRun();
 		expect((await runs.get(fresh.id))!.flow.version).toBe(2);
 		const e = await refusal(
-			runs.recordEvent(
+			recordEvent(
 				fresh.id,
 				{
 					type: 'ANSWER',

@@ -13,6 +13,7 @@ import { makeJobIntake } from '$lib/schemas/job';
 import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import * as library from '$lib/server/flows/queries';
 import { getStore, MemoryStore } from '$lib/server/storage';
 import { jpegWithGps, png } from '$lib/server/photos/fixtures';
@@ -304,7 +305,7 @@ describe('run photos', () => {
 		expect((await post({})).status).toBe(400);
 
 		// Once the step is answered, a photo of it is tied to that recorded answer too.
-		await runs.recordEvent(
+		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: 'photo-spec-answer-1' },
 			tech

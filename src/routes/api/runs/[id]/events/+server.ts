@@ -1,6 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
-import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import { answer, badRequest, readJson, type RunApiError } from '$lib/server/runs/http';
 import { claim, keyReusedMessage } from '$lib/server/idempotency';
 import { runEventInput } from '$lib/schemas/run';
@@ -29,7 +29,7 @@ export const POST: RequestHandler = async (event) => {
 		return json({ message: keyReusedMessage, code: 'key-reused' } satisfies RunApiError, { status: 422 });
 	return answer(async () => {
 		try {
-			const result = await runs.recordEvent(event.params.id, parsed.data, user);
+			const result = await recordEvent(event.params.id, parsed.data, user);
 			return json(result satisfies RunEventResponse);
 		} catch (e) {
 			if (key.status === 'new') await key.release();

@@ -1,0 +1,330 @@
+// Step events against the built server (issue 12, point 1). For each database (PGlite always,
+// PostgreSQL when DATABASE_URL names a server: each measurement gets a fresh database on it) and
+// each build (BENCH_BUILDS, comma-separated build folders, default `build`; e.g.
+// BENCH_BUILDS=.build-before,build compares two versions in one run):
+// 1. Capacity: 16 clients flat out under autocannon (each sends its next event the moment the last
+//    is answered): events/s (goal >= 400), p50/p95, and the floor of the cheapest database route.
+// 2. Paced: 64 technicians each sending one event a second at a random phase: p50/p95 (goal p95
+//    <= 10 ms).
+// 3. The longest event-loop stall in each window (goal <= 50 ms), read from an env-gated, lead-only
+//    endpoint that wraps perf_hooks.monitorEventLoopDelay inside the server process.
+// 4. The JavaScript the run page ships, gzipped (goal <= 100 KB).
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import zlib from 'node:zlib';
+import { randomUUID } from 'node:crypto';
+import autocannon from 'autocannon';
+import pg from 'pg';
+import { ensureBuild, freePort, startServer } from './lib.mjs';
+import { imeiCheckDigit } from '../src/lib/domain/identifiers';
+import { dryLonger, loopStep, restartLoopFlow, toCleanAndDry } from '../src/lib/server/runs/walks';
+
+const FLAT_CLIENTS = 16;
+const PACED_CLIENTS = Number(process.env.BENCH_PACED_CLIENTS ?? 64);
+/** Seconds between two events of one paced client: a technician answering steps by hand is slower. */
+const PACED_PERIOD = Number(process.env.BENCH_PACED_PERIOD ?? 1);
+const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
+const PASSWORD = 'bench-demo-password';
+const BUILDS = (process.env.BENCH_BUILDS ?? 'build').split(',').filter(Boolean);
+const ADMIN_URL = process.env.DATABASE_URL;
+
+type Loop = { maxMs: number; p99Ms: number; meanMs: number };
+type Window = { rate: number; times: number[]; loop: Loop; non2xx: number; cpuMs: number };
+type Figures = { build: string; db: string; flat: Window; paced: Window; floor: Window; js?: number };
+
+/** User + system CPU of a process so far, in ms (Linux /proc; clock ticks of 10 ms). */
+function cpuMs(pid: number): number {
+	const fields = fs.readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+	return (Number(fields[11]) + Number(fields[12])) * 10;
+}
+
+const pct = (xs: number[], p: number) => {
+	const s = [...xs].sort((a, b) => a - b);
+	return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))];
+};
+const fmt = (ms: number) => `${ms.toFixed(2)} ms`;
+
+if (BUILDS.includes('build')) ensureBuild();
+const all: Figures[] = [];
+const dbs = ADMIN_URL ? ['pglite', 'postgres'] : ['pglite'];
+if (!ADMIN_URL)
+	console.log('PostgreSQL: DATABASE_URL not set, skipped (see .ci/run for a throw-away server).');
+for (const db of dbs)
+	for (const build of BUILDS) {
+		console.log(`\n--- ${build} on ${db} ---`);
+		all.push(await measure(build, db));
+	}
+
+console.log(
+	'\nSummary (flat out: 16 clients; paced: %d clients, one event every %d s each)',
+	PACED_CLIENTS,
+	PACED_PERIOD
+);
+console.log(
+	'| build | database | flat events/s | flat p50 / p95 | flat stall | server CPU per event | paced p50 / p95 | paced stall | floor p95 | run page JS (gzip) |'
+);
+console.log('|---|---|---|---|---|---|---|---|---|---|');
+for (const f of all)
+	console.log(
+		`| ${f.build} | ${f.db} | ${Math.round(f.flat.rate)} | ${f.flat.times.length ? `${pct(f.flat.times, 50).toFixed(1)} / ${pct(f.flat.times, 95).toFixed(1)} ms` : '-'} | ` +
+			`${f.flat.loop.maxMs.toFixed(0)} ms | ${(f.flat.cpuMs / f.flat.times.length).toFixed(2)} ms | ${pct(f.paced.times, 50).toFixed(1)} / ${pct(f.paced.times, 95).toFixed(1)} ms | ` +
+			`${f.paced.loop.maxMs.toFixed(0)} ms | ${pct(f.floor.times, 95).toFixed(1)} ms | ${f.js ? `${(f.js / 1024).toFixed(1)} KB` : ''} |`
+	);
+
+async function measure(build: string, db: string): Promise<Figures> {
+	const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-runs-bench-'));
+	const port = await freePort();
+	const base = `http://127.0.0.1:${port}`;
+	// SvelteKit's form CSRF check compares Origin with ORIGIN, which startServer sets to localhost.
+	const origin = `http://localhost:${port}`;
+	const database = db === 'postgres' ? await freshDatabase(ADMIN_URL!) : undefined;
+	const server = await startServer({
+		port,
+		dataDir,
+		build,
+		env: {
+			TIDEMARK_DEMO: '1',
+			DEMO_PASSWORD: PASSWORD,
+			TIDEMARK_DIAGNOSTICS: '1',
+			DATABASE_URL: database?.url ?? ''
+		}
+	});
+	try {
+		const tech = await signIn(base, origin, 'tech@tidemark.test');
+		const lead = await signIn(base, origin, 'lead@tidemark.test');
+		const api = (cookie: string) => async (method: string, url: string, body?: unknown) => {
+			const res = await fetch(base + url, {
+				method,
+				headers: { cookie, 'content-type': 'application/json', origin },
+				body: body === undefined ? undefined : JSON.stringify(body)
+			});
+			const text = await res.text();
+			if (!res.ok) throw new Error(`${method} ${url}: ${res.status} ${text}`);
+			return text ? JSON.parse(text) : undefined;
+		};
+		const asTech = api(tech);
+		const asLead = api(lead);
+		const stepEvent = (back: boolean) =>
+			back
+				? { type: 'BACK', stepId: loopStep, idempotencyKey: randomUUID() }
+				: { type: 'ANSWER', stepId: loopStep, outcome: dryLonger, idempotencyKey: randomUUID() };
+
+		// One run per client, walked to the loop step; each client then alternates ANSWER (dry longer)
+		// and BACK, so the run's path stays short and every request does the full work.
+		const runIds: string[] = [];
+		for (let i = 0; i < Math.max(PACED_CLIENTS, FLAT_CLIENTS); i++) {
+			const body14 = `0099${String(i).padStart(10, '0')}`;
+			const job = await asTech('POST', '/api/jobs', {
+				customerName: 'Bench Customer',
+				customerEmail: 'bench@example.test',
+				maker: 'Corvana',
+				model: 'Tern 5',
+				imei: `${body14}${imeiCheckDigit(body14)}`,
+				symptoms: ['restart-loop'],
+				liquid: 'fresh',
+				submerged: false,
+				passcodeStatus: 'withheld',
+				consentToOpen: true
+			});
+			const run = await asTech('POST', '/api/runs', { jobId: job.id, flowId: restartLoopFlow });
+			for (const [stepId, outcome] of toCleanAndDry)
+				await asTech('POST', `/api/runs/${run.id}/events`, {
+					type: 'ANSWER',
+					stepId,
+					outcome,
+					idempotencyKey: randomUUID()
+				});
+			runIds.push(run.id);
+		}
+
+		const windowed = async (work: () => Promise<{ rate: number; times: number[]; non2xx: number }>) => {
+			await asLead('POST', '/api/diagnostics/event-loop');
+			const cpu0 = cpuMs(server.child.pid!);
+			const r = await work();
+			const cpu = cpuMs(server.child.pid!) - cpu0;
+			return { ...r, cpuMs: cpu, loop: (await asLead('GET', '/api/diagnostics/event-loop')) as Loop };
+		};
+		/** The server's CPU time per request of a window: on a shared machine, steadier than its wall time. */
+		const perEvent = (w: Window) => w.cpuMs / w.times.length;
+		// Warm-up (JIT, compiled-machine cache), then the measured windows.
+		await flatOut(2);
+		const flat = await windowed(() => flatOut(SECONDS));
+		const paced = await windowed(() => pacedLoad(SECONDS));
+		// The floor under the flat-out figure: the same 16 connections on the cheapest route that
+		// touches the database (GET /api/health: the hooks, one `select 1`, a small JSON answer).
+		const floor = await windowed(() => floorLoad(SECONDS));
+
+		console.log(
+			`flat out, ${FLAT_CLIENTS} clients: ${flat.times.length} events in ${SECONDS} s (${Math.round(flat.rate)}/s; goal >= 400), non-2xx ${flat.non2xx}; ` +
+				`p50 ${fmt(pct(flat.times, 50))}, p95 ${fmt(pct(flat.times, 95))}, p99 ${fmt(pct(flat.times, 99))}; ` +
+				`longest stall ${fmt(flat.loop.maxMs)} ${flat.rate >= 400 ? 'OK' : 'UNDER GOAL'}`
+		);
+		console.log(
+			`  server CPU per event (Node process): ${fmt(perEvent(flat))}, so one free core serves about ${Math.round(1000 / perEvent(flat))} events/s`
+		);
+		const p95 = pct(paced.times, 95);
+		console.log(
+			`paced, ${PACED_CLIENTS} clients x 1 event / ${PACED_PERIOD} s: ${paced.times.length} events, non-2xx ${paced.non2xx}; ` +
+				`p50 ${fmt(pct(paced.times, 50))}, p95 ${fmt(p95)}, p99 ${fmt(pct(paced.times, 99))} (goal p95 <= 10 ms) ${p95 <= 10 ? 'OK' : 'OVER GOAL'}; ` +
+				`longest stall ${fmt(paced.loop.maxMs)} (goal <= 50 ms) ${paced.loop.maxMs <= 50 ? 'OK' : 'OVER GOAL'}`
+		);
+		console.log(
+			`floor, GET /api/health flat out at ${FLAT_CLIENTS} connections: p50 ${fmt(pct(floor.times, 50))}, p95 ${fmt(pct(floor.times, 95))} (${Math.round(floor.rate)}/s)`
+		);
+		let js: number | undefined;
+		if (db === 'pglite') {
+			const page = await pageJavaScript(base, `/runs/${runIds[0]}`, tech);
+			js = page.gzip;
+			console.log(
+				`run page JavaScript (nodes ${page.nodes.join(', ')}): ${page.files} files, ${(page.raw / 1024).toFixed(1)} KB raw, ` +
+					`${(page.gzip / 1024).toFixed(1)} KB gzipped (goal <= 100 KB) ${page.gzip <= 100 * 1024 ? 'OK' : 'OVER GOAL'}`
+			);
+		}
+		return { build, db, flat, paced, floor, js };
+
+		/** Each client sends one event every PACED_PERIOD seconds, starting at a random phase. */
+		async function pacedLoad(seconds: number) {
+			const period = PACED_PERIOD * 1000;
+			const end = performance.now() + seconds * 1000;
+			const times: number[] = [];
+			let non2xx = 0;
+			const client = async (runId: string) => {
+				let back = false;
+				let next = performance.now() + Math.random() * period;
+				while (next < end) {
+					await new Promise((r) => setTimeout(r, Math.max(0, next - performance.now())));
+					const t0 = performance.now();
+					const res = await fetch(`${base}/api/runs/${runId}/events`, {
+						method: 'POST',
+						headers: { cookie: tech, 'content-type': 'application/json', origin },
+						body: JSON.stringify(stepEvent(back))
+					});
+					await res.arrayBuffer();
+					times.push(performance.now() - t0);
+					if (!res.ok) non2xx++;
+					back = !back;
+					next += period;
+				}
+			};
+			await Promise.all(runIds.slice(0, PACED_CLIENTS).map(client));
+			return { rate: times.length / seconds, times, non2xx };
+		}
+
+		/** Runs autocannon for `seconds`; every response time is kept for exact percentiles. */
+		async function flatOut(seconds: number) {
+			let next = 0;
+			const times: number[] = [];
+			const event = (back: boolean) => ({
+				method: 'POST' as const,
+				setupRequest: (req: Record<string, unknown>, context: { run?: string }) => {
+					context.run ??= runIds[next++ % FLAT_CLIENTS];
+					return { ...req, path: `/api/runs/${context.run}/events`, body: JSON.stringify(stepEvent(back)) };
+				}
+			});
+			const instance = autocannon({
+				url: base,
+				connections: FLAT_CLIENTS,
+				duration: seconds,
+				headers: { cookie: tech, 'content-type': 'application/json', origin },
+				requests: [event(false), event(true)]
+			});
+			instance.on('response', (_c: unknown, _s: number, _b: number, ms: number) => times.push(ms));
+			const result = await instance;
+			return { rate: times.length / seconds, times, non2xx: result.non2xx + result.errors };
+		}
+
+		/** GET /api/health under the same load as the events, with the same session cookie. */
+		async function floorLoad(seconds: number) {
+			const times: number[] = [];
+			const instance = autocannon({
+				url: `${base}/api/health`,
+				connections: FLAT_CLIENTS,
+				duration: seconds,
+				headers: { cookie: tech }
+			});
+			instance.on('response', (_c: unknown, _s: number, _b: number, ms: number) => times.push(ms));
+			const result = await instance;
+			return { rate: times.length / seconds, times, non2xx: result.non2xx + result.errors };
+		}
+	} finally {
+		await server.stop();
+		fs.rmSync(dataDir, { recursive: true, force: true });
+		await database?.drop();
+	}
+}
+
+/** A new, empty database on the server DATABASE_URL names, dropped after the measurement. */
+async function freshDatabase(adminUrl: string) {
+	const name = `tidemark_bench_${randomUUID().slice(0, 8)}`;
+	const admin = new pg.Client({ connectionString: adminUrl });
+	await admin.connect();
+	await admin.query(`create database ${name}`);
+	await admin.end();
+	const url = new URL(adminUrl);
+	url.pathname = `/${name}`;
+	return {
+		url: url.href,
+		drop: async () => {
+			const c = new pg.Client({ connectionString: adminUrl });
+			await c.connect();
+			await c.query(`drop database if exists ${name} with (force)`);
+			await c.end();
+		}
+	};
+}
+
+/** Signs in through the app's own form and returns the session cookie header. */
+async function signIn(base: string, origin: string, email: string) {
+	const res = await fetch(`${base}/signin`, {
+		method: 'POST',
+		redirect: 'manual',
+		headers: { 'content-type': 'application/x-www-form-urlencoded', origin },
+		body: new URLSearchParams({ email, password: PASSWORD })
+	});
+	const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0]);
+	if (!cookies.some((c) => c.includes('session-token')))
+		throw new Error(`sign-in failed for ${email}: ${res.status}`);
+	return cookies.join('; ');
+}
+
+/**
+ * The JavaScript a browser loads for the page: SvelteKit's HTML imports start.js and app.js and
+ * names the route's nodes (`node_ids`); app.js maps each node to its file. Every module reachable
+ * from those by static imports is counted once (lazy `import()` chunks are not loaded up front).
+ */
+async function pageJavaScript(base: string, url: string, cookie: string) {
+	const pageUrl = base + url;
+	const html = await (await fetch(pageUrl, { headers: { cookie } })).text();
+	const entries = [...html.matchAll(/import\("([^"]+\.js)"\)/g)].map((m) => new URL(m[1], pageUrl).href);
+	const nodeIds = JSON.parse(/node_ids:\s*(\[[^\]]*\])/.exec(html)?.[1] ?? '[]');
+	const text = new Map<string, Buffer>();
+	const get = async (href: string): Promise<Buffer> => {
+		if (!text.has(href)) text.set(href, Buffer.from(await (await fetch(href)).arrayBuffer()));
+		return text.get(href)!;
+	};
+	const app = entries.find((e) => /\/entry\/app\./.test(e));
+	const appText = app ? (await get(app)).toString() : '';
+	const nodeFiles = [...appText.matchAll(/import\("(\.\.\/nodes\/(\d+)\.[^"]+\.js)"\)/g)]
+		.filter((m) => nodeIds.includes(Number(m[2])))
+		.map((m) => new URL(m[1], app).href);
+	const queue = [...entries, ...nodeFiles];
+	const seen = new Set<string>();
+	while (queue.length) {
+		const href = queue.pop()!;
+		if (seen.has(href)) continue;
+		seen.add(href);
+		const src = (await get(href)).toString();
+		// Static imports only: `import{a}from"./x.js"`, `import"./x.js"`, `export*from"./x.js"`.
+		for (const m of src.matchAll(/(?:\bfrom|\bimport)\s*"(\.{1,2}\/[^"]+\.js)"/g))
+			queue.push(new URL(m[1], href).href);
+	}
+	let raw = 0;
+	let gzip = 0;
+	for (const href of seen) {
+		const bytes = await get(href);
+		raw += bytes.length;
+		gzip += zlib.gzipSync(bytes, { level: 9 }).length;
+	}
+	return { files: seen.size, raw, gzip, nodes: nodeIds };
+}
