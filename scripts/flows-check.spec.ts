@@ -36,7 +36,7 @@ describe('flows:check', () => {
 
 	it('defaults to every flows/*.flow.yaml and expands folders', () => {
 		expect(expand([]).every((p) => /\/flows\/[a-z0-9-]+\.flow\.yaml$/.test(p))).toBe(true);
-		expect(expand([`${root}/tests/fixtures/flows`])).toHaveLength(16);
+		expect(expand([`${root}/tests/fixtures/flows`])).toHaveLength(21); // one broken fixture per problem code, and the valid ones
 	});
 
 	it('exits 0 on a sound flow and 1 on a broken one', () => {
