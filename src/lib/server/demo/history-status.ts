@@ -6,11 +6,9 @@
 import { generateHistory } from '$lib/server/insights/demo-history';
 import { warmUp } from '$lib/server/insights/queries';
 
-export type HistoryStatus =
-	| { state: 'idle' }
-	| { state: 'filling'; done: number; total: number; startedAt: number }
-	| { state: 'done'; total: number; seconds: number }
-	| { state: 'failed'; message: string };
+import type { HistoryStatus } from '$lib/insights/history';
+
+export type { HistoryStatus };
 
 const g = globalThis as unknown as { __tidemarkHistory?: HistoryStatus };
 
