@@ -233,7 +233,7 @@ const judge = alias(users, 'judge');
  * Verdicts the repair overturned (the newest word on the run says "did not hold") after `since`,
  * newest first: the first `limit` and how many.
  */
-export async function overturnedSince(since: Date, limit = 8) {
+export async function overturnedSince(since: Date, limit = 5) {
 	const db = await getDb();
 	const newest = sql`not exists (select 1 from ${verdictConfirmations} later
 		where later.run_id = ${verdictConfirmations.runId} and (later.at, later.id) > (${verdictConfirmations.at}, ${verdictConfirmations.id}))`;
