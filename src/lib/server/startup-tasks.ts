@@ -11,7 +11,7 @@ import { registerJobPayments } from '$lib/server/reports/customer';
 import { seedDeviceModels } from '$lib/server/jobs/device-models';
 import { seedDemoJobs } from '$lib/server/jobs/demo';
 import { seedDemoDay } from '$lib/server/demo/day';
-import { DEFAULT_HISTORY_RUNS, fillHistory } from '$lib/server/demo/history-status';
+import { DEFAULT_HISTORY_RUNS, fillHistory, stopHistory } from '$lib/server/demo/history-status';
 
 const demo = process.env.TIDEMARK_DEMO === '1';
 /** Whether the demo started with no run history: decided before the demo's own day adds runs. */
@@ -76,7 +76,14 @@ onStartup('insights', async () => {
 			console.log('[demo] TIDEMARK_DEMO_HISTORY=0: no invented history (`npm run demo:history` adds it).');
 		else if (wanted && wanted > 0) await generateHistory({ runs: wanted, seed: 6, extraTechnicians: false });
 		// adapter-node listens as soon as the start-up tasks return; the fill starts just after.
-		else setTimeout(() => void fillHistory(DEFAULT_HISTORY_RUNS), 200);
+		else {
+			let running: Promise<unknown> | null = null;
+			const timer = setTimeout(() => (running = fillHistory(DEFAULT_HISTORY_RUNS)), 200);
+			onShutdown('demo history', () => {
+				clearTimeout(timer);
+				return stopHistory(running);
+			});
+		}
 	}
 	warmUpInsights();
 });

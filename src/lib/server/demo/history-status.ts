@@ -10,7 +10,9 @@ import type { HistoryStatus } from '$lib/insights/history';
 
 export type { HistoryStatus };
 
-const g = globalThis as unknown as { __tidemarkHistory?: HistoryStatus };
+const g = globalThis as unknown as { __tidemarkHistory?: HistoryStatus; __tidemarkHistoryStop?: boolean };
+
+class Stopped extends Error {}
 
 export function historyStatus(): HistoryStatus {
 	return g.__tidemarkHistory ?? { state: 'idle' };
@@ -22,8 +24,10 @@ export const DEFAULT_HISTORY_RUNS = 5000;
 /**
  * Writes `runs` invented runs in small batches, yielding between them so the server keeps
  * answering, logging progress to the console. Resolves when done (or failed: logged, not thrown).
+ * `stopHistory()` (on shutdown) ends it after the batch under way; the runs written so far stay.
  */
 export async function fillHistory(runs: number, log = console.log): Promise<HistoryStatus> {
+	g.__tidemarkHistoryStop = false;
 	const startedAt = Date.now();
 	g.__tidemarkHistory = { state: 'filling', done: 0, total: runs, startedAt };
 	log(`[demo] filling a year of invented history in the background: ${runs} runs…`);
@@ -33,6 +37,7 @@ export async function fillHistory(runs: number, log = console.log): Promise<Hist
 			runs,
 			batch: 100,
 			onProgress: (done, total) => {
+				if (g.__tidemarkHistoryStop && done < total) throw new Stopped(`stopped at ${done} of ${total} runs`);
 				g.__tidemarkHistory = { state: 'filling', done, total, startedAt };
 				const pct = Math.floor((done / total) * 10);
 				if (pct > lastLog || done === total) {
@@ -48,7 +53,14 @@ export async function fillHistory(runs: number, log = console.log): Promise<Hist
 	} catch (e) {
 		const message = e instanceof Error ? e.message : String(e);
 		g.__tidemarkHistory = { state: 'failed', message };
-		console.error('[demo] the invented history could not be written:', e);
+		if (e instanceof Stopped) log(`[demo] history ${message}: the app is stopping.`);
+		else console.error('[demo] the invented history could not be written:', e);
 	}
 	return historyStatus();
+}
+
+/** Asks a running fill to stop after its current batch, and waits for it. */
+export async function stopHistory(running: Promise<unknown> | null) {
+	g.__tidemarkHistoryStop = true;
+	await running;
 }
