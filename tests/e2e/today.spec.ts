@@ -12,7 +12,7 @@ test('a technician resumes their run and takes the most urgent unassigned job', 
 
 	// Resume: one tap, with the step the run stands on.
 	const run = page.getByTestId('today-runs').getByTestId('today-run').first();
-	await expect(run).toContainText(/At .+ ago/);
+	await expect(run).toContainText(/At .+ · (just now|\d+ (min|h|days) ago)/);
 	const step = (await run.locator('.font-medium').last().textContent())!.trim();
 	await run.getByRole('link', { name: 'Resume' }).click();
 	await expect(page).toHaveURL(/\/runs\/[0-9a-f-]{36}$/);
