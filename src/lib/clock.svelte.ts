@@ -1,3 +1,4 @@
+/* eslint-disable svelte/prefer-svelte-reactivity -- these Dates are replaced each minute, never mutated */
 import { browser } from '$app/environment';
 
 /**

@@ -1,12 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-	byUrgency,
-	endOfLocalDay,
-	isOverdue,
-	localDayAfter,
-	urgencyAt,
-	type QueueItem
-} from './queue';
+import { byUrgency, endOfLocalDay, isOverdue, localDayAfter, urgencyAt, type QueueItem } from './queue';
 
 // Every expected value below is worked out by hand from the rule in queue.ts and urgency.ts
 // (common practice, no published source): level = min(3, liquid weight + wait band), liquid weight
@@ -14,7 +7,12 @@ import {
 // later 3 · unknown 1.
 const now = new Date('2026-12-04T12:00:00Z');
 const hoursAgo = (h: number) => new Date(now.getTime() - h * 3_600_000);
-const item = (number: number, liquid: QueueItem['liquid'], h: number | null, promised?: string): QueueItem => ({
+const item = (
+	number: number,
+	liquid: QueueItem['liquid'],
+	h: number | null,
+	promised?: string
+): QueueItem => ({
 	number,
 	liquid,
 	exposedAt: h === null ? null : hoursAgo(h),
