@@ -48,6 +48,8 @@ while (complete === null) {
 	}
 	await new Promise((r) => setTimeout(r, firstOk === null ? 10 : 100));
 }
+// Let the insights' catch-up after the history finish before stopping.
+await new Promise((r) => setTimeout(r, 3000));
 await new Promise((resolve) => {
 	child.once('exit', resolve);
 	child.kill('SIGTERM');

@@ -35,7 +35,10 @@ export async function fillHistory(runs: number, log = console.log): Promise<Hist
 	try {
 		await generateHistory({
 			runs,
-			batch: 100,
+			// Small batches and a pause between them: PGlite runs one statement at a time on the main
+			// thread, so a request waits for the batch under way (bench/first-start.bench.mjs).
+			batch: 25,
+			pauseMs: 10,
 			onProgress: (done, total) => {
 				if (g.__tidemarkHistoryStop && done < total) throw new Stopped(`stopped at ${done} of ${total} runs`);
 				g.__tidemarkHistory = { state: 'filling', done, total, startedAt };

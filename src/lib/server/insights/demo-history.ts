@@ -255,6 +255,8 @@ export type HistoryOptions = {
 	/** Add the invented bench staff (default); false uses the staff already there. */
 	extraTechnicians?: boolean;
 	onProgress?: (done: number, total: number) => void;
+	/** Milliseconds to wait between batches (0: just yield). */
+	pauseMs?: number;
 };
 
 /**
@@ -468,7 +470,8 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 		});
 		done += n;
 		opts.onProgress?.(done, opts.runs);
-		await new Promise((r) => setImmediate(r));
+		// A pause lets a live server answer the requests that queued behind the batch.
+		await new Promise((r) => (opts.pauseMs ? setTimeout(r, opts.pauseMs) : setImmediate(r)));
 	}
 	return { runs: opts.runs, steps: stepsWritten };
 }
