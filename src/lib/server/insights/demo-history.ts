@@ -375,6 +375,7 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 							status: 'collected' as const,
 							technicianId: p.tech,
 							createdAt: intake,
+							promisedAt: new Date(intake.getTime() + 3 * DAY),
 							updatedAt: new Date(p.startedAt + 3 * DAY)
 						};
 					})
