@@ -23,7 +23,7 @@ import * as authoring from '$lib/server/flows/authoring';
 import { imeiCheckDigit } from '$lib/domain/identifiers';
 import { currentStep } from '$lib/flows/machine';
 import type { FlowDefinition } from '$lib/flows/schema';
-import type { JobIntake } from '$lib/schemas/job';
+import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import type { JobStatus } from '$lib/domain/jobStatus';
 import { demoStaff } from './seed';
 
@@ -197,26 +197,8 @@ const day: DayJob[] = [
 	}
 ];
 
-const base: Omit<JobIntake, 'customerName' | 'maker' | 'model' | 'liquid'> = {
-	customerEmail: '',
-	customerPhone: '',
-	imei: '',
-	serial: '',
-	symptoms: [],
-	exposedAt: '',
-	tzOffsetMin: 0,
-	submerged: false,
-	depthM: undefined,
-	minutes: undefined,
-	ratingCode: '',
-	declaredDepthM: undefined,
-	declaredMinutes: undefined,
-	dataFirst: false,
-	passcodeStatus: 'given',
-	consentToOpen: true,
-	notes: '',
-	promisedDate: ''
-};
+/** What every job of the day shares; the intake schema fills in the rest of its defaults. */
+const base = { passcodeStatus: 'given', consentToOpen: true, submerged: false } satisfies Partial<JobIntake>;
 
 /** The chain of moves from "received" to `to` along the workflow's usual path. */
 const path: JobStatus[] = [
@@ -299,11 +281,10 @@ export async function seedDemoDay(): Promise<number> {
 	for (const [i, d] of day.entries()) {
 		const flow = flows[i % flows.length];
 		const worker = d.who ? people[d.who] : null;
-		const job = await jobs.create(lead.id, {
-			...base,
-			symptoms: flow.def.symptoms.slice(0, 1),
-			...d.intake
-		} as JobIntake);
+		const job = await jobs.create(
+			lead.id,
+			makeJobIntake().parse({ ...base, symptoms: flow.def.symptoms.slice(0, 1), ...d.intake })
+		);
 		if (worker) await jobs.assignTechnician(job.id, worker.id, lead.id);
 		const target = path.indexOf(d.status);
 		if (worker && target >= 1) {
