@@ -4,6 +4,7 @@ import { getDb } from '$lib/server/db';
 import { jobs as jobsTable } from '$lib/server/db/schema/jobs';
 import { quotes as quotesTable } from '$lib/server/db/schema/quotes';
 import { outgoingMail } from '$lib/server/db/schema/mail';
+import { flowVersions } from '$lib/server/db/schema/flows';
 import { verdictConfirmations } from '$lib/server/db/schema/insights';
 import { imeiCheckDigit } from '$lib/domain/identifiers';
 import { person, type TestPerson } from '$lib/server/staff/fixtures';
@@ -173,9 +174,14 @@ describe('technician', () => {
 describe('senior', () => {
 	let seniorsDraft: string, othersDraft: string, returned: string, editedByMe: string;
 	beforeAll(async () => {
-		const v = await library.currentPublished('no-sound-after-liquid');
-		const w = await library.currentPublished('not-charging-after-liquid');
-		const x = await library.currentPublished('face-unlock-after-liquid');
+		// Any three published flows: which ones does not matter to the lists.
+		const db = await getDb();
+		const published = await db
+			.selectDistinctOn([flowVersions.flowId], { id: flowVersions.id })
+			.from(flowVersions)
+			.where(eq(flowVersions.status, 'published'))
+			.orderBy(flowVersions.flowId);
+		const [v, w, x] = published;
 		seniorsDraft = (await authoring.createDraft(senior, { fromVersionId: v!.id })).id;
 		await authoring.submit(senior, seniorsDraft);
 		othersDraft = (await authoring.createDraft(senior2, { fromVersionId: w!.id })).id;
