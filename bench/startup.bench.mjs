@@ -9,7 +9,7 @@ ensureBuild();
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-bench-'));
 const port = await freePort();
 // First start creates the data folder (initdb), migrates and seeds the demo: not measured.
-const first = await startServer({ port, dataDir, env: { TIDEMARK_DEMO: '1' } });
+const first = await startServer({ port, dataDir, env: { TIDEMARK_DEMO: '1', TIDEMARK_DEMO_HISTORY: '0' } });
 await first.stop();
 console.log(
 	`first start on an empty folder (initdb + migrate + seed): ${(first.ms / 1000).toFixed(2)} s (not part of the goal)`

@@ -66,12 +66,14 @@ const server = spawn(process.execPath, [path.join(root, 'build')], { cwd: root, 
 for (const signal of ['SIGINT', 'SIGTERM']) process.on(signal, () => server.kill(signal));
 server.on('exit', (code) => process.exit(code ?? 0));
 
-// Announce once the app answers.
+// Announce once the app answers (once: polls still in flight may answer after the first).
 const started = Date.now();
+let announced = false;
 const poll = setInterval(async () => {
 	try {
 		const res = await fetch(`http://127.0.0.1:${port}/api/health`);
-		if (!res.ok) return;
+		if (!res.ok || announced) return;
+		announced = true;
 		clearInterval(poll);
 		console.log(
 			`\nTidemark demo is up at ${origin}  (started in ${((Date.now() - started) / 1000).toFixed(1)} s)`
@@ -79,7 +81,10 @@ const poll = setInterval(async () => {
 		console.log(
 			`Sign in as lead@tidemark.test, senior@tidemark.test or tech@tidemark.test — password: ${demoPassword}`
 		);
-		console.log('Insights empty on a new demo? Stop it and run: npm run demo:history -- --runs 5000');
+		if (process.env.TIDEMARK_DEMO_HISTORY !== '0')
+			console.log(
+				'A new demo writes a year of invented history in the background (progress below); TIDEMARK_DEMO_HISTORY=0 skips it.'
+			);
 		console.log('Stop with Ctrl+C.\n');
 	} catch {
 		if (Date.now() - started > 120_000) clearInterval(poll);

@@ -16,6 +16,7 @@ import {
 } from '$lib/domain/exposure';
 import { isValidImei, normaliseImei } from '$lib/domain/identifiers';
 import { jobStatuses } from '$lib/domain/jobStatus';
+import { endOfLocalDay, localDayAfter } from '$lib/domain/queue';
 
 export const passcodeStatuses = ['given', 'withheld', 'not-needed'] as const;
 export type PasscodeStatus = (typeof passcodeStatuses)[number];
@@ -140,7 +141,16 @@ const intakeShape = {
 	dataFirst: z.boolean().default(false),
 	passcodeStatus: z.enum(passcodeStatuses, { error: PASSCODE_MESSAGE }).nullable(),
 	consentToOpen: z.boolean().default(false),
-	notes: text('Notes').trim().max(4000, 'Keep notes under 4000 characters.').default('')
+	notes: text('Notes').trim().max(4000, 'Keep notes under 4000 characters.').default(''),
+	/** The day promised to the customer (YYYY-MM-DD, in the browser's zone); '' takes the shop's turnaround. */
+	promisedDate: z
+		.string()
+		.trim()
+		.refine(
+			(v) => v === '' || (/^\d{4}-\d{2}-\d{2}$/.test(v) && !Number.isNaN(Date.parse(`${v}T00:00:00Z`))),
+			'Enter the promised date as a date, or leave it empty for the usual turnaround.'
+		)
+		.default('')
 };
 
 type IntakeShape = z.infer<z.ZodObject<typeof intakeShape>>;
@@ -184,6 +194,16 @@ export function exposedAtOf(v: Pick<IntakeShape, 'exposedAt' | 'tzOffsetMin'>): 
 	if (/(Z|[+-]\d{2}:\d{2})$/.test(v.exposedAt)) return new Date(v.exposedAt);
 	// A datetime-local value is wall-clock time in the browser's zone; getTimezoneOffset is UTC − local.
 	return new Date(Date.parse(`${v.exposedAt}Z`) + v.tzOffsetMin * 60_000);
+}
+
+/** The promised instant: the end of the chosen day, or of today plus the shop's turnaround. */
+export function promisedAtOf(
+	v: Pick<IntakeShape, 'promisedDate' | 'tzOffsetMin'>,
+	turnaroundDays: number,
+	now = new Date()
+): Date {
+	const day = v.promisedDate || localDayAfter(now, turnaroundDays, v.tzOffsetMin);
+	return endOfLocalDay(day, v.tzOffsetMin);
 }
 
 /**
@@ -260,6 +280,13 @@ export function makeJobIntake(symptomVocabulary?: readonly string[]) {
 				ctx.addIssue({ code: 'custom', path: ['declaredDepthM'], message: result.explanation });
 			}
 		}
+		if (v.promisedDate && v.promisedDate < localDayAfter(new Date(), 0, v.tzOffsetMin)) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['promisedDate'],
+				message: 'That day has passed; promise today or a later day.'
+			});
+		}
 		const at = exposedAtOf(v);
 		if (at && at.getTime() > Date.now() + 5 * 60_000) {
 			ctx.addIssue({
@@ -274,7 +301,17 @@ export function makeJobIntake(symptomVocabulary?: readonly string[]) {
 export const jobIntake = makeJobIntake();
 export type JobIntake = z.infer<typeof jobIntake>;
 
-export const sortColumns = ['number', 'customer', 'model', 'status', 'createdAt', 'updatedAt'] as const;
+export const sortColumns = [
+	'number',
+	'customer',
+	'model',
+	'status',
+	'createdAt',
+	'updatedAt',
+	'urgency',
+	'promisedAt'
+] as const;
+export const urgencyLevels = ['low', 'elevated', 'high', 'critical'] as const;
 export type JobSortColumn = (typeof sortColumns)[number];
 
 /** GET /api/jobs and the /jobs page URL: every part optional, so a bare URL lists the newest jobs. */
@@ -285,6 +322,10 @@ export const jobListQuery = z.object({
 		.union([z.uuid(), z.literal('none')])
 		.optional()
 		.catch(undefined),
+	/** At least this urgency of cleaning, as of now (open jobs only). */
+	urgency: z.enum(urgencyLevels).optional().catch(undefined),
+	/** '1': only open jobs past their promised date. */
+	overdue: z.literal('1').optional().catch(undefined),
 	sort: z.enum(sortColumns).default('createdAt').catch('createdAt'),
 	dir: z.enum(['asc', 'desc']).default('desc').catch('desc'),
 	page: z.coerce.number().int().min(1).max(100_000).default(1).catch(1),
@@ -300,7 +341,17 @@ export function listQueryFrom(params: URLSearchParams): JobListQuery {
 export function listQueryString(query: Partial<JobListQuery>): string {
 	const defaults = jobListQuery.parse({});
 	const params = new URLSearchParams();
-	for (const key of ['q', 'status', 'technician', 'sort', 'dir', 'page', 'size'] as const) {
+	for (const key of [
+		'q',
+		'status',
+		'technician',
+		'urgency',
+		'overdue',
+		'sort',
+		'dir',
+		'page',
+		'size'
+	] as const) {
 		const value = query[key];
 		if (value !== undefined && value !== '' && value !== defaults[key]) params.set(key, String(value));
 	}

@@ -23,7 +23,17 @@ export const shopSettingsForm = z.object({
 		.int('Whole days.')
 		.min(1, 'At least one day.')
 		.max(90, 'At most 90 days.'),
-	terms: text('The terms').max(10_000, 'Keep the terms under 10,000 characters.')
+	terms: text('The terms').max(10_000, 'Keep the terms under 10,000 characters.'),
+	turnaroundDays: z
+		.number({ error: 'Enter a number of days.' })
+		.int('Whole days.')
+		.min(0, 'Zero or more days.')
+		.max(60, 'At most 60 days.'),
+	quoteWaitHours: z
+		.number({ error: 'Enter a number of hours.' })
+		.int('Whole hours.')
+		.min(1, 'At least one hour.')
+		.max(720, 'At most 720 hours (30 days).')
 });
 export type ShopSettingsForm = z.infer<typeof shopSettingsForm>;
 

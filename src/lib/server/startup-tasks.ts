@@ -10,9 +10,17 @@ import { startMailWorker } from '$lib/server/mail/worker';
 import { registerJobPayments } from '$lib/server/reports/customer';
 import { seedDeviceModels } from '$lib/server/jobs/device-models';
 import { seedDemoJobs } from '$lib/server/jobs/demo';
+import { seedDemoDay } from '$lib/server/demo/day';
+import { DEFAULT_HISTORY_RUNS, fillHistory, stopHistory } from '$lib/server/demo/history-status';
+
+const demo = process.env.TIDEMARK_DEMO === '1';
+/** Whether the demo started with no run history: decided before the demo's own day adds runs. */
+let historyWasEmpty = false;
 
 onStartup('demo seed', async () => {
-	if (process.env.TIDEMARK_DEMO === '1') await seedDemo();
+	if (!demo) return;
+	historyWasEmpty = (await historySize()) === 0;
+	await seedDemo();
 });
 
 // Every start, demo or not: new or changed flows/*.flow.yaml become published versions.
@@ -25,9 +33,12 @@ onStartup('device models', async () => {
 	await seedDeviceModels();
 });
 
-// A few invented jobs for the demo shop, once, when there are none.
+// A few invented jobs for the demo shop, once, when there are none; then the shop's day (jobs in
+// every status, runs under way, drafts in review), once, so every role's Today has something.
 onStartup('demo jobs', async () => {
-	if (process.env.TIDEMARK_DEMO === '1') await seedDemoJobs();
+	if (!demo) return;
+	await seedDemoJobs();
+	await seedDemoDay();
 });
 
 // Demo and tests (TIDEMARK_DEMO=1 or TIDEMARK_FAKES=1): local mail and payment services, each only
@@ -53,14 +64,26 @@ onStartup('mail worker', async () => {
 	onShutdown('mail worker', () => worker.stop());
 });
 
-// Keep last, after the demo seeds. TIDEMARK_DEMO_HISTORY=N (end-to-end tests) writes N invented runs
-// into an empty history; a demo without history says how to fill it; then the insights' in-process
-// copy of the facts fills in the background.
+// Keep last, after the demo seeds. A demo that started with no history fills a year of it in the
+// background once the server listens (progress in the console, a notice on Today and Insights).
+// TIDEMARK_DEMO_HISTORY=0 skips it; =N (end-to-end tests) writes N runs before the server listens.
+// Then the insights' in-process copy of the facts fills in the background.
 onStartup('insights', async () => {
-	const wanted = Number(process.env.TIDEMARK_DEMO_HISTORY ?? 0);
-	const size = process.env.TIDEMARK_DEMO === '1' ? await historySize() : -1;
-	if (wanted > 0 && size === 0) await generateHistory({ runs: wanted, seed: 6, extraTechnicians: false });
-	else if (size === 0)
-		console.log('[insights] no run history yet: stop the app and run `npm run demo:history -- --runs 5000`.');
+	const setting = process.env.TIDEMARK_DEMO_HISTORY;
+	const wanted = setting === undefined || setting === '' ? null : Number(setting);
+	if (demo && historyWasEmpty) {
+		if (wanted === 0)
+			console.log('[demo] TIDEMARK_DEMO_HISTORY=0: no invented history (`npm run demo:history` adds it).');
+		else if (wanted && wanted > 0) await generateHistory({ runs: wanted, seed: 6, extraTechnicians: false });
+		// adapter-node listens as soon as the start-up tasks return; the fill starts just after.
+		else {
+			let running: Promise<unknown> | null = null;
+			const timer = setTimeout(() => (running = fillHistory(DEFAULT_HISTORY_RUNS)), 200);
+			onShutdown('demo history', () => {
+				clearTimeout(timer);
+				return stopHistory(running);
+			});
+		}
+	}
 	warmUpInsights();
 });

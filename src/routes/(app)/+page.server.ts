@@ -1,7 +1,91 @@
-import { requireUser } from '$lib/server/guards';
-import type { PageServerLoad } from './$types';
+import { fail } from '@sveltejs/kit';
+import { z } from 'zod';
+import { requireRole, requireUser } from '$lib/server/guards';
+import * as today from '$lib/server/today/queries';
+import * as shop from '$lib/server/today/lead';
+import * as settings from '$lib/server/settings/queries';
+import { historyStatus } from '$lib/server/demo/history-status';
+import type { Actions, PageServerLoad } from './$types';
+
+/** Midnight of the server's day: "today" for intake and collections. */
+const startOfDay = (now: Date) => new Date(now.getFullYear(), now.getMonth(), now.getDate());
+
+async function bench(userId: string, now: Date) {
+	const [runs, mine, unassigned] = await Promise.all([
+		today.runsInProgress(userId),
+		today.myJobs(userId, now),
+		today.unassigned(now)
+	]);
+	return { runs, queue: mine.queue, waiting: mine.waiting, unassigned };
+}
+
+async function review(userId: string, now: Date) {
+	const [reviews, sentBack, overturned] = await Promise.all([
+		today.reviewsWaiting(userId),
+		today.sentBack(userId),
+		today.overturnedFor(userId, now)
+	]);
+	return { reviews, sentBack, overturned };
+}
+
+async function lead(now: Date) {
+	const { quoteWaitHours } = await settings.getWorkflow();
+	const dayStart = startOfDay(now);
+	const [intake, collections, overdue, quotes, mail, rising] = await Promise.all([
+		shop.intakeSince(dayStart),
+		shop.collections(dayStart),
+		shop.overdue(now),
+		shop.quotesWaiting(now, quoteWaitHours),
+		shop.failedMail(),
+		shop.rising()
+	]);
+	return { intake, collections, overdue, quotes, quoteWaitHours, mail, rising };
+}
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	return { greeting: user.name.split(' ')[0] };
+	const now = new Date();
+	const role = user.role;
+	// The lead runs the shop; a senior also works the bench, so they see both halves.
+	const [benchLists, reviewLists, leadLists] = await Promise.all([
+		role === 'lead' ? null : bench(user.id, now),
+		role === 'senior' ? review(user.id, now) : null,
+		role === 'lead' ? lead(now) : null
+	]);
+	const reviewsForLead = role === 'lead' ? await today.reviewsWaiting(user.id) : null;
+	return {
+		greeting: user.name.split(' ')[0],
+		role,
+		now,
+		bench: benchLists,
+		review: reviewLists,
+		lead: leadLists,
+		reviewsForLead,
+		history: historyStatus()
+	};
+};
+
+const jobId = z.object({ jobId: z.uuid() });
+
+export const actions: Actions = {
+	/** Take an unassigned job: it becomes mine unless someone took it first. */
+	take: async (event) => {
+		const user = requireRole(event, 'technician');
+		const parsed = jobId.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { action: 'take', message: 'Choose a job to take.' });
+		try {
+			const job = await today.take(parsed.data.jobId, user.id);
+			return { action: 'take', taken: job.id, message: 'The job is yours: it is now in your queue.' };
+		} catch (e) {
+			if (e instanceof today.TakeError)
+				return fail(409, { action: 'take', jobId: parsed.data.jobId, message: e.message });
+			throw e;
+		}
+	},
+	/** The overturned verdicts were seen: from now on the list starts here. */
+	seenOverturned: async (event) => {
+		const user = requireRole(event, 'senior');
+		await today.markSeen(user.id, 'overturned');
+		return { action: 'seenOverturned', message: 'Marked as seen.' };
+	}
 };

@@ -255,6 +255,8 @@ export type HistoryOptions = {
 	/** Add the invented bench staff (default); false uses the staff already there. */
 	extraTechnicians?: boolean;
 	onProgress?: (done: number, total: number) => void;
+	/** Milliseconds to wait between batches (0: just yield). */
+	pauseMs?: number;
 };
 
 /**
@@ -373,6 +375,7 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 							status: 'collected' as const,
 							technicianId: p.tech,
 							createdAt: intake,
+							promisedAt: new Date(intake.getTime() + 3 * DAY),
 							updatedAt: new Date(p.startedAt + 3 * DAY)
 						};
 					})
@@ -468,7 +471,8 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 		});
 		done += n;
 		opts.onProgress?.(done, opts.runs);
-		await new Promise((r) => setImmediate(r));
+		// A pause lets a live server answer the requests that queued behind the batch.
+		await new Promise((r) => (opts.pauseMs ? setTimeout(r, opts.pauseMs) : setImmediate(r)));
 	}
 	return { runs: opts.runs, steps: stepsWritten };
 }

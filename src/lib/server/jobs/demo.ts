@@ -25,7 +25,8 @@ const base = {
 	customerEmail: '',
 	customerPhone: '',
 	dataFirst: false,
-	notes: ''
+	notes: '',
+	promisedDate: ''
 } satisfies Partial<JobIntake>;
 
 const hoursAgo = (h: number) => new Date(Date.now() - h * 3_600_000).toISOString();

@@ -10,7 +10,11 @@ import { getDb, type Tx } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { customers, jobEvents, jobs, type Job } from '$lib/server/db/schema/jobs';
 import { record } from '$lib/server/audit';
+import * as settings from '$lib/server/settings/queries';
 import { assessExposure } from '$lib/domain/exposure';
+import type { LiquidKind } from '$lib/domain/liquid';
+import { urgencyRank } from '$lib/domain/queue';
+import { isOpenSql, overdueSql, urgencyRankSql } from './urgency-sql';
 import { normaliseImei } from '$lib/domain/identifiers';
 import {
 	canTransition,
@@ -23,6 +27,7 @@ import {
 	exposedAtOf,
 	exposureOf,
 	normaliseSerial,
+	promisedAtOf,
 	ratingOf,
 	type JobIntake,
 	type JobListQuery
@@ -53,6 +58,7 @@ export async function create(actorId: string | null, input: JobIntake): Promise<
 	const rating = ratingOf(input);
 	const exposure = exposureOf(input);
 	const assessment = assessExposure(rating, exposure);
+	const { turnaroundDays } = await settings.getWorkflow();
 	return db.transaction(async (tx) => {
 		const [customer] = await tx
 			.insert(customers)
@@ -87,6 +93,7 @@ export async function create(actorId: string | null, input: JobIntake): Promise<
 				consentToOpen: input.consentToOpen,
 				consentAt: input.consentToOpen ? now : null,
 				notes: input.notes.trim(),
+				promisedAt: promisedAtOf(input, turnaroundDays, now),
 				status: 'received',
 				createdBy: actorId
 			})
@@ -120,6 +127,9 @@ const listColumns = {
 	dataFirst: jobs.dataFirst,
 	technicianId: jobs.technicianId,
 	technicianName: technician.name,
+	liquid: jobs.liquid,
+	exposedAt: jobs.exposedAt,
+	promisedAt: jobs.promisedAt,
 	createdAt: jobs.createdAt,
 	updatedAt: jobs.updatedAt
 };
@@ -137,6 +147,9 @@ export type JobListRow = {
 	dataFirst: boolean;
 	technicianId: string | null;
 	technicianName: string | null;
+	liquid: LiquidKind;
+	exposedAt: Date | null;
+	promisedAt: Date | null;
 	createdAt: Date;
 	updatedAt: Date;
 };
@@ -170,10 +183,28 @@ const statusOrder = sql.raw(
 	`array_position(array[${jobStatuses.map((s) => `'${s}'`).join(',')}]::text[], jobs.status)`
 );
 
-function orderFor(query: JobListQuery): SQL[] {
+function orderFor(query: JobListQuery, now: Date): SQL[] {
 	const d = query.dir === 'asc' ? asc : desc;
 	const byNumber = desc(jobs.number);
 	switch (query.sort) {
+		case 'urgency':
+			// "desc" (the default) is most urgent first, as queue.ts compareUrgency orders; closed jobs last.
+			return query.dir === 'asc'
+				? [desc(isOpenSql), asc(urgencyRankSql(now)), sql`${jobs.exposedAt} desc nulls first`, byNumber]
+				: [
+						desc(isOpenSql),
+						desc(urgencyRankSql(now)),
+						sql`${jobs.exposedAt} asc nulls last`,
+						sql`${jobs.promisedAt} asc nulls last`,
+						asc(jobs.number)
+					];
+		case 'promisedAt':
+			return [
+				query.dir === 'asc'
+					? sql`${jobs.promisedAt} asc nulls last`
+					: sql`${jobs.promisedAt} desc nulls last`,
+				byNumber
+			];
 		case 'number':
 			return [d(jobs.number)];
 		case 'customer':
@@ -190,9 +221,11 @@ function orderFor(query: JobListQuery): SQL[] {
 }
 
 /** One page of jobs, searched, filtered and sorted in the database. */
-export async function list(query: JobListQuery): Promise<JobList> {
+export async function list(query: JobListQuery, now = new Date()): Promise<JobList> {
 	const db = await getDb();
 	const where = and(
+		query.urgency ? and(isOpenSql, sql`${urgencyRankSql(now)} >= ${urgencyRank[query.urgency]}`) : undefined,
+		query.overdue ? overdueSql(now) : undefined,
 		searchCondition(query.q),
 		query.status ? eq(jobs.status, query.status) : undefined,
 		query.technician === 'none'
@@ -214,7 +247,7 @@ export async function list(query: JobListQuery): Promise<JobList> {
 		.innerJoin(customers, eq(customers.id, jobs.customerId))
 		.leftJoin(technician, eq(technician.id, jobs.technicianId))
 		.where(where)
-		.orderBy(...orderFor(query))
+		.orderBy(...orderFor(query, now))
 		.limit(query.size)
 		.offset((page - 1) * query.size);
 	return { rows: rows as JobListRow[], total, page, size: query.size, pages };

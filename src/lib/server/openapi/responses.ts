@@ -45,6 +45,9 @@ export const jobListRow = z
 		dataFirst: z.boolean(),
 		technicianId: z.uuid().nullable(),
 		technicianName: z.string().nullable(),
+		liquid: z.enum(liquidKinds),
+		exposedAt: at.nullable(),
+		promisedAt: at.nullable().meta({ description: 'The end of the day promised to the customer.' }),
 		createdAt: at,
 		updatedAt: at
 	})
@@ -110,6 +113,7 @@ export const jobDetail = z
 		consentToOpen: z.boolean(),
 		consentAt: at.nullable(),
 		notes: z.string(),
+		promisedAt: at.nullable().meta({ description: 'The end of the day promised to the customer.' }),
 		status: z.enum(jobStatuses),
 		technicianId: z.uuid().nullable(),
 		createdBy: z.uuid().nullable(),

@@ -81,3 +81,25 @@ export const getMoney = () => readKey('money', moneySettingsSchema, moneyDefault
 export const getReport = () => readKey('report', reportSettingsSchema, reportDefaults);
 export const setMoney = (value: MoneySettings) => writeKey('money', moneySettingsSchema.parse(value));
 export const setReport = (value: ReportSettings) => writeKey('report', reportSettingsSchema.parse(value));
+
+// ── The bench's day (lead, /settings; Today and intake read it) ─────────────────────────────────
+
+/**
+ * Turnaround: the promised date intake proposes is today plus this many calendar days. Quotes
+ * waiting on the customer longer than `quoteWaitHours` show on the lead's Today. Both defaults are
+ * common practice, no published source (a shop changes them in /settings).
+ */
+export const workflowSettingsSchema = z.object({
+	turnaroundDays: z.number().int('Whole days.').min(0, 'Zero or more days.').max(60, 'At most 60 days.'),
+	quoteWaitHours: z
+		.number()
+		.int('Whole hours.')
+		.min(1, 'At least one hour.')
+		.max(720, 'At most 720 hours (30 days).')
+});
+export type WorkflowSettings = z.infer<typeof workflowSettingsSchema>;
+const workflowDefaults: WorkflowSettings = { turnaroundDays: 3, quoteWaitHours: 48 };
+
+export const getWorkflow = () => readKey('workflow', workflowSettingsSchema, workflowDefaults);
+export const setWorkflow = (value: WorkflowSettings) =>
+	writeKey('workflow', workflowSettingsSchema.parse(value));

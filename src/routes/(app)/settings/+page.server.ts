@@ -10,10 +10,11 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'lead');
-	const [shop, money, report] = await Promise.all([
+	const [shop, money, report, workflow] = await Promise.all([
 		settings.getShop(),
 		settings.getMoney(),
-		settings.getReport()
+		settings.getReport(),
+		settings.getWorkflow()
 	]);
 	const form = await superValidate(
 		{
@@ -22,7 +23,9 @@ export const load: PageServerLoad = async (event) => {
 			taxRatePercent: basisPointsToPercent(money.taxRateBasisPoints),
 			pricesIncludeTax: money.pricesIncludeTax,
 			linkLifetimeDays: report.linkLifetimeDays,
-			terms: report.terms
+			terms: report.terms,
+			turnaroundDays: workflow.turnaroundDays,
+			quoteWaitHours: workflow.quoteWaitHours
 		},
 		zod4(shopSettingsForm)
 	);
@@ -44,6 +47,7 @@ export const actions: Actions = {
 			pricesIncludeTax: d.pricesIncludeTax
 		});
 		await settings.setReport({ linkLifetimeDays: d.linkLifetimeDays, terms: d.terms });
+		await settings.setWorkflow({ turnaroundDays: d.turnaroundDays, quoteWaitHours: d.quoteWaitHours });
 		await record(await getDb(), {
 			actorId: lead.id,
 			action: 'settings.update',
@@ -51,7 +55,9 @@ export const actions: Actions = {
 			details: {
 				currency: d.currency,
 				taxRatePercent: d.taxRatePercent,
-				linkLifetimeDays: d.linkLifetimeDays
+				linkLifetimeDays: d.linkLifetimeDays,
+				turnaroundDays: d.turnaroundDays,
+				quoteWaitHours: d.quoteWaitHours
 			}
 		});
 		return message(form, 'Settings saved. New quotes use them; quotes already saved keep their own.');

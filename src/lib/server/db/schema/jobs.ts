@@ -106,6 +106,8 @@ export const jobs = pgTable(
 		consentToOpen: boolean('consent_to_open').notNull().default(false),
 		consentAt: timestamp('consent_at', { withTimezone: true }),
 		notes: text('notes').notNull().default(''),
+		/** The date the shop told the customer the phone would be ready (intake, default from the turnaround setting). */
+		promisedAt: timestamp('promised_at', { withTimezone: true }),
 		status: text('status', { enum: jobStatuses }).notNull().default('received'),
 		technicianId: uuid('technician_id').references(() => users.id),
 		createdBy: uuid('created_by').references(() => users.id),
@@ -118,6 +120,7 @@ export const jobs = pgTable(
 		index('jobs_technician_idx').on(t.technicianId),
 		index('jobs_created_at_idx').on(t.createdAt),
 		index('jobs_imei_idx').on(t.imei),
+		index('jobs_promised_at_idx').on(t.promisedAt),
 		check('jobs_identifier_check', sql`${t.imei} is not null or ${t.serial} is not null`),
 		check('jobs_imei_format_check', sql`${t.imei} is null or ${t.imei} ~ '^[0-9]{15}$'`),
 		check('jobs_status_check', sql.raw(`status in (${jobStatuses.map((s) => `'${s}'`).join(', ')})`)),

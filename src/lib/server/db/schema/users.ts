@@ -4,6 +4,7 @@ import {
 	check,
 	index,
 	jsonb,
+	primaryKey,
 	pgTable,
 	text,
 	timestamp,
@@ -53,6 +54,22 @@ export const auditLog = pgTable(
 		at: timestamp('at', { withTimezone: true }).notNull().defaultNow()
 	},
 	(t) => [index('audit_log_target_idx').on(t.targetType, t.targetId), index('audit_log_at_idx').on(t.at)]
+);
+
+/**
+ * Per member, when they last marked a list on Today as seen (e.g. 'overturned'): the list then
+ * shows only what came after. One row per member and list.
+ */
+export const userSeen = pgTable(
+	'user_seen',
+	{
+		userId: uuid('user_id')
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		list: text('list').notNull(),
+		seenAt: timestamp('seen_at', { withTimezone: true }).notNull()
+	},
+	(t) => [primaryKey({ columns: [t.userId, t.list] })]
 );
 
 export type User = typeof users.$inferSelect;

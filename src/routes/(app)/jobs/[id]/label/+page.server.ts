@@ -3,7 +3,8 @@ import QRCode from 'qrcode';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import { absoluteUrl } from '$lib/server/public-url';
-import { formatJobNumber } from '$lib/schemas/job';
+import { formatJobNumber, liquidLabels } from '$lib/schemas/job';
+import { urgencyAt } from '$lib/domain/queue';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -20,6 +21,11 @@ export const load: PageServerLoad = async (event) => {
 			device: `${job.maker} ${job.model}`,
 			customer: job.customer.name,
 			takenIn: job.createdAt,
+			promisedAt: job.promisedAt,
+			// Paper does not age: the label prints the urgency at printing with what it was computed from.
+			urgency: urgencyAt(job, new Date()),
+			liquid: liquidLabels[job.liquid],
+			exposedAt: job.exposedAt,
 			dataFirst: job.dataFirst,
 			identifierTail: (job.imei ?? job.serial ?? '').slice(-4),
 			url,
