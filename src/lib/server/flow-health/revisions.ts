@@ -1,0 +1,81 @@
+/**
+ * Which steps each run revised (went BACK to and answered again), held in this process and read
+ * incrementally, beside the insights' copy of the facts (which keep only the answers that still
+ * stand). A BACK is an inserted `run_steps` row and never changes afterwards, so the ids already
+ * read never need reading again: each catch-up asks for `max(id)` (an index lookup) and reads the
+ * BACK rows in the new id range, a bounded span per statement with a pause between, so a long
+ * catch-up never holds PGlite's main thread for long (see DEVELOPERS.md, Insights).
+ */
+import { sql } from 'drizzle-orm';
+import type { DB } from '$lib/server/db';
+
+/** Row ids scanned per statement (of which about one in five is a BACK in a typical history). */
+const SPAN = 5000;
+
+type Row = { id: number | string; run_id: string; step_id: string };
+
+export class RevisionStore {
+	/** Run id → the steps whose answer that run revised. */
+	readonly byRun = new Map<string, Set<string>>();
+	lastId = 0;
+	/**
+	 * Bumped when a revision arrives for a run that is already finished (rare: a finished run takes
+	 * no BACK, but its rows may be read after its facts). Revisions of runs still under way change
+	 * no figure until the run finishes, which moves the facts' own generation.
+	 */
+	generation = 0;
+	private syncing: Promise<void> | null = null;
+
+	/** Catches up with run_steps; concurrent callers share one catch-up. */
+	sync(db: DB, isFinished: (runId: string) => boolean): Promise<void> {
+		this.syncing ??= this.catchUp(db, isFinished).finally(() => (this.syncing = null));
+		return this.syncing;
+	}
+
+	add(runId: string, stepId: string, finished: boolean) {
+		let steps = this.byRun.get(runId);
+		if (!steps) this.byRun.set(runId, (steps = new Set()));
+		if (steps.has(stepId)) return;
+		steps.add(stepId);
+		if (finished) this.generation++;
+	}
+
+	private async catchUp(db: DB, isFinished: (runId: string) => boolean) {
+		const top = rowsOf<{ max: string | number | null }>(
+			await db.execute(sql`select max(id) as max from run_steps`)
+		)[0]?.max;
+		const max = top === null || top === undefined ? 0 : Number(top);
+		while (this.lastId < max) {
+			const to = Math.min(max, this.lastId + SPAN);
+			// The revised answer is the row of the same run whose seq the BACK names.
+			const rows = rowsOf<Row>(
+				await db.execute(sql`
+					select b.id, b.run_id, s.step_id from run_steps b
+					join run_steps s on s.run_id = b.run_id and s.seq = (b.answer->'back'->>'revised')::int
+					where b.id > ${this.lastId} and b.id <= ${to} and b.kind = 'back'`)
+			);
+			for (const r of rows) this.add(r.run_id, r.step_id, isFinished(r.run_id));
+			this.lastId = to;
+			// Let waiting requests (a technician's step) run between statements.
+			if (this.lastId < max) await new Promise((resolve) => setImmediate(resolve));
+		}
+	}
+}
+
+/** PGlite answers `{ rows }`, node-postgres through drizzle the same; keep both shapes safe. */
+function rowsOf<T>(result: unknown): T[] {
+	return (Array.isArray(result) ? result : (result as { rows: T[] }).rows) as T[];
+}
+
+const g = globalThis as unknown as { __tidemarkRevisions?: RevisionStore };
+
+/** One store per process, on globalThis so that Vite's HMR does not load it twice. */
+export function revisionStore(): RevisionStore {
+	g.__tidemarkRevisions ??= new RevisionStore();
+	return g.__tidemarkRevisions;
+}
+
+/** Forgets the process's copy (tests that start over with another database). */
+export function resetRevisions() {
+	g.__tidemarkRevisions = undefined;
+}
