@@ -46,7 +46,7 @@ const health: VersionHealth = {
 			revised: share(12, 39),
 			time: { answers: 39, medianMinutes: 14, p90Minutes: 22.25 },
 			flags: [
-				{ kind: 'revised', reason: 'answers revised in 31 % of runs (12/39, 95 % 19–47 %)' },
+				{ kind: 'revised', reason: 'answers revised in 31 % of runs (12/39, 95 % 19–46 %)' },
 				{ kind: 'slow', reason: 'median 14 min against 5 expected (39 answers)' }
 			]
 		})
@@ -63,7 +63,7 @@ describe('HealthTable', () => {
 		const flag = within(flagged).getByTestId('flag');
 		expect(flag).toHaveTextContent('Stands out');
 		expect(flag.querySelector('svg')).not.toBeNull();
-		expect(within(flag).getByText('answers revised in 31 % of runs (12/39, 95 % 19–47 %)')).toBeVisible();
+		expect(within(flag).getByText('answers revised in 31 % of runs (12/39, 95 % 19–46 %)')).toBeVisible();
 		expect(within(flag).getByText('median 14 min against 5 expected (39 answers)')).toBeVisible();
 		const edit = within(flagged).getByRole('link', { name: 'Edit at this step: Measure the standby draw' });
 		expect(edit).toHaveAttribute('href', '/flows/demo-flow/drafts/new?from=3&step=measure-draw');
@@ -80,10 +80,11 @@ describe('HealthTable', () => {
 		expect(within(plain).queryByTestId('flag')).toBeNull();
 		// 12/39 = 30.8 %, Wilson 95 % 18.6–46.4 % (computed by domain/stats, checked there against Newcombe 1998).
 		expect(flagged).toHaveTextContent('31 %');
-		expect(flagged).toHaveTextContent('12/39 · 95 % 19–46 %');
+		expect(flagged).toHaveTextContent('12/39 runs 95 % 19–46 %');
 		expect(flagged).toHaveTextContent('14 min');
-		expect(flagged).toHaveTextContent('p90 22.3');
-		expect(flagged).toHaveTextContent('expected 5 min · 39 answers');
+
+		expect(flagged).toHaveTextContent('p90 22.3 · expected 5');
+		expect(flagged).toHaveTextContent('39 answers');
 		expect(plain).toHaveTextContent('1 of 5 overturned');
 		expect(plain).toHaveTextContent('Abandoned herenone');
 	});
