@@ -14,6 +14,7 @@ import { makeJobIntake } from '$lib/schemas/job';
 import { recordConfirmation, rebuildFacts } from '$lib/server/insights/facts';
 import type { StepHealth, VersionHealth } from '$lib/flow-health/types';
 import * as flowHealth from './queries';
+import { RevisionStore, revisionStore } from './revisions';
 
 // Real in-memory PGlite migrated from drizzle/. Seventeen finished runs of the shipped restart-loop
 // flow, version 1, written straight into runs/run_steps with chosen times, answers, BACKs, abandons
@@ -368,6 +369,19 @@ describe('standouts for the senior’s Today', () => {
 });
 
 describe('kept up to date incrementally', () => {
+	it('finds each revised step whether the revised answer lies in the span read or further back', async () => {
+		// One id per statement: a BACK's revised answer is then in the window only when it is the row
+		// just before it; run 7's second BACK revises an answer two rows back and is looked up.
+		const db = await getDb();
+		const small = new RevisionStore(1);
+		await small.sync(db, () => true);
+		expect(small.byRun).toEqual(revisionStore().byRun);
+		expect(small.byRun.get(ids[6])).toEqual(new Set([I, D]));
+		expect(small.byRun.get(ids[0])).toEqual(new Set([O]));
+		// Distinct revised steps per run: runs 1–5, 6, 7 (two), 14 and the run under way.
+		expect(small.generation).toBe(10);
+	});
+
 	it('counts a run that finishes later, with its revision, and ignores other versions', async () => {
 		// The run under way finishes (its revision of open-and-disconnect was read while it ran).
 		const db = await getDb();

@@ -9,10 +9,10 @@
 import { sql } from 'drizzle-orm';
 import type { DB } from '$lib/server/db';
 
-/** Row ids scanned per statement (of which about one in five is a BACK in a typical history). */
-const SPAN = 5000;
+/** Row ids read per statement (about one in five is a BACK in a typical history). */
+const SPAN = 2000;
 
-type Row = { id: number | string; run_id: string; step_id: string };
+type Row = { id: number | string; run_id: string; step_id: string | null };
 
 export class RevisionStore {
 	/** Run id → the steps whose answer that run revised. */
@@ -25,6 +25,9 @@ export class RevisionStore {
 	 */
 	generation = 0;
 	private syncing: Promise<void> | null = null;
+
+	/** `span`: row ids read per statement (smaller in specs, to reach the look-up further back). */
+	constructor(readonly span = SPAN) {}
 
 	/** Catches up with run_steps; concurrent callers share one catch-up. */
 	sync(db: DB, isFinished: (runId: string) => boolean): Promise<void> {
@@ -46,15 +49,37 @@ export class RevisionStore {
 		)[0]?.max;
 		const max = top === null || top === undefined ? 0 : Number(top);
 		while (this.lastId < max) {
-			const to = Math.min(max, this.lastId + SPAN);
-			// The revised answer is the row of the same run whose seq the BACK names.
+			const from = this.lastId;
+			const to = Math.min(max, from + this.span);
+			// The revised answer is the row of the same run whose seq the BACK names, written shortly
+			// before it: match within the span and the one before it (two range scans and a hash
+			// join, not an index lookup per BACK), then look up the few that lie further back.
 			const rows = rowsOf<Row>(
 				await db.execute(sql`
-					select b.id, b.run_id, s.step_id from run_steps b
-					join run_steps s on s.run_id = b.run_id and s.seq = (b.answer->'back'->>'revised')::int
-					where b.id > ${this.lastId} and b.id <= ${to} and b.kind = 'back'`)
+					with w as materialized (
+						select id, run_id, seq, step_id, kind, answer from run_steps
+						where id > ${from - this.span} and id <= ${to}
+					)
+					select b.id, b.run_id, s.step_id
+					from w b left join w s on s.run_id = b.run_id and s.seq = (b.answer->'back'->>'revised')::int
+					where b.id > ${from} and b.kind = 'back'`)
 			);
-			for (const r of rows) this.add(r.run_id, r.step_id, isFinished(r.run_id));
+			const far = rows.filter((r) => r.step_id === null);
+			if (far.length > 0) {
+				const ids = sql.join(
+					far.map((r) => sql`${r.id}::bigint`),
+					sql`, `
+				);
+				const found = rowsOf<Row>(
+					await db.execute(sql`
+						select b.id, b.run_id, s.step_id from run_steps b
+						join run_steps s on s.run_id = b.run_id and s.seq = (b.answer->'back'->>'revised')::int
+						where b.id in (${ids})`)
+				);
+				const stepOf = new Map(found.map((r) => [String(r.id), r.step_id]));
+				for (const r of far) r.step_id = stepOf.get(String(r.id)) ?? null;
+			}
+			for (const r of rows) if (r.step_id !== null) this.add(r.run_id, r.step_id, isFinished(r.run_id));
 			this.lastId = to;
 			// Let waiting requests (a technician's step) run between statements.
 			if (this.lastId < max) await new Promise((resolve) => setImmediate(resolve));
