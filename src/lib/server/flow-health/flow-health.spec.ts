@@ -373,7 +373,7 @@ describe('kept up to date incrementally', () => {
 		// One id per statement: a BACK's revised answer is then in the window only when it is the row
 		// just before it; run 7's second BACK revises an answer two rows back and is looked up.
 		const db = await getDb();
-		const small = new RevisionStore(1);
+		const small = new RevisionStore(1, 0);
 		await small.sync(db, () => true);
 		expect(small.byRun).toEqual(revisionStore().byRun);
 		expect(small.byRun.get(ids[6])).toEqual(new Set([I, D]));

@@ -9,6 +9,12 @@
 import { sql } from 'drizzle-orm';
 import type { DB } from '$lib/server/db';
 
+/**
+ * Rows written before the new ones that are read with them to find the answers their BACKs revise
+ * (at least this many, else as many as the new rows): a BACK revises the run's previous answer,
+ * written moments earlier. A catch-up of a few new rows thus reads a few hundred, not thousands.
+ */
+const LOOKBACK = 200;
 /** Row ids read per statement (about one in five is a BACK in a typical history). */
 const SPAN = 2000;
 
@@ -26,8 +32,11 @@ export class RevisionStore {
 	generation = 0;
 	private syncing: Promise<void> | null = null;
 
-	/** `span`: row ids read per statement (smaller in specs, to reach the look-up further back). */
-	constructor(readonly span = SPAN) {}
+	/** Smaller `span` and `lookback` in specs, to reach the look-up further back. */
+	constructor(
+		readonly span = SPAN,
+		readonly lookback = LOOKBACK
+	) {}
 
 	/** Catches up with run_steps; concurrent callers share one catch-up. */
 	sync(db: DB, isFinished: (runId: string) => boolean): Promise<void> {
@@ -52,13 +61,13 @@ export class RevisionStore {
 			const from = this.lastId;
 			const to = Math.min(max, from + this.span);
 			// The revised answer is the row of the same run whose seq the BACK names, written shortly
-			// before it: match within the span and the one before it (two range scans and a hash
-			// join, not an index lookup per BACK), then look up the few that lie further back.
+			// before it: match within the new rows and those just before them (one range scan and a
+			// hash join, not an index lookup per BACK), then look up the few that lie further back.
 			const rows = rowsOf<Row>(
 				await db.execute(sql`
 					with w as materialized (
 						select id, run_id, seq, step_id, kind, answer from run_steps
-						where id > ${from - this.span} and id <= ${to}
+						where id > ${from - Math.max(this.lookback, to - from)} and id <= ${to}
 					)
 					select b.id, b.run_id, s.step_id
 					from w b left join w s on s.run_id = b.run_id and s.seq = (b.answer->'back'->>'revised')::int
