@@ -6,6 +6,8 @@
 // 3. Step-event p95 of 16 technicians while a lead reloads the dashboard in a loop (goal <= 25 ms),
 //    in one process: both share Node's main thread exactly as in the server (no HTTP here; the
 //    HTTP round trip of step events is measured by bench/runs.bench.ts).
+// 4. The same while a senior reloads flow health (the busiest flow's current version, and the
+//    standouts a senior's Today shows), with the cost of one flow-health computation.
 // The history comes from the demo generator (src/lib/server/insights/demo-history.ts). Generating
 // 100,000 runs takes several minutes; BENCH_INSIGHTS_DIR keeps the PGlite folder between runs.
 // BENCH_INSIGHTS_RUNS changes the size.
@@ -82,6 +84,10 @@ try {
 	const setup = await load('/src/lib/server/insights/demo-setup.ts');
 	const insights = await load('/src/lib/server/insights/queries.ts');
 	const { factStore } = await load('/src/lib/server/insights/store.ts');
+	const flowHealth = await load('/src/lib/server/flow-health/queries.ts');
+	const healthCompute = await load('/src/lib/server/flow-health/compute.ts');
+	const { revisionStore } = await load('/src/lib/server/flow-health/revisions.ts');
+	const library = await load('/src/lib/server/flows/queries.ts');
 	const { getDb, getHandle } = await load('/src/lib/server/db/index.ts');
 	const { sql } = await import('drizzle-orm');
 	const runsQ = await load('/src/lib/server/runs/queries.ts');
@@ -214,7 +220,7 @@ try {
 		runIds.push(run.id);
 	}
 	/** 16 technicians send events back to back (paceMs 0) or each one every paceMs. */
-	async function technicians(seconds: number, withLead: boolean, paceMs = 0) {
+	async function technicians(seconds: number, withLead: boolean | (() => Promise<unknown>), paceMs = 0) {
 		const times: number[] = [];
 		const perTech: number[] = [];
 		let stop = false;
@@ -245,9 +251,11 @@ try {
 				due = paceMs > 0 ? due + paceMs : answered;
 			}
 		};
+		const reload =
+			typeof withLead === 'function' ? withLead : () => Promise.all(Object.values(parts).map((f) => f()));
 		const lead = async () => {
 			while (!stop) {
-				await Promise.all(Object.values(parts).map((f) => f()));
+				await reload();
 				reloads++;
 				await new Promise((r) => setImmediate(r));
 			}
@@ -291,6 +299,53 @@ try {
 		`  the same while the lead reloads the dashboard (${pacedBusy.reloads} reloads): p50 ${ms(pct(pacedBusy.times, 50))}, p95 ${ms(pacedP95)} (goal <= 25 ms) ${pacedP95 <= 25 ? 'OK' : 'OVER GOAL'}`
 	);
 	console.log(`  paced, alone: ${fairness(pacedAlone)}; with the lead: ${fairness(pacedBusy)}`);
+
+	// 4. Flow health: a senior reloading the page of the busiest flow's current version, and the
+	// standouts of every flow's current version (what a senior's Today asks for).
+	const busiest = [...factStore().byFlow].sort((a, b) => b[1].size - a[1].size)[0][0];
+	const version = (await library.currentPublished(busiest)).version;
+	t0 = performance.now();
+	await flowHealth.standouts(5);
+	console.log(
+		`flow health: first read (fills the copy of the BACK rows, ${revisionStore().byRun.size.toLocaleString('en')} runs with revisions): ${ms(performance.now() - t0)}`
+	);
+	const stored = await library.getVersion(busiest, version);
+	const computeTimes: number[] = [];
+	let flagged = 0;
+	for (let i = 0; i < 10; i++) {
+		const a = performance.now();
+		const h = healthCompute.versionHealth(
+			{ flowId: busiest, flowTitle: busiest, version, status: 'published', definition: stored.definition },
+			factStore().byFlow.get(busiest).values(),
+			(runId: string) => revisionStore().byRun.get(runId)
+		);
+		computeTimes.push(performance.now() - a);
+		flagged = h.flagged;
+	}
+	console.log(
+		`  one version's health computed (${busiest} v${version}, ${factStore().byFlow.get(busiest).size.toLocaleString('en')} runs of the flow, ${flagged} steps flagged): median ${ms(pct(computeTimes, 50))}`
+	);
+	const seniorReload = () => Promise.all([flowHealth.forVersion(busiest, version), flowHealth.standouts(5)]);
+	const reloadTimes: number[] = [];
+	for (let i = 0; i < 30; i++) {
+		const a = performance.now();
+		await seniorReload();
+		reloadTimes.push(performance.now() - a);
+	}
+	console.log(
+		`  page reload (version health + standouts, incl. both freshness checks): median ${ms(pct(reloadTimes, 50))}`
+	);
+	const healthBusy = await technicians(SECONDS, seniorReload);
+	const healthP95 = pct(healthBusy.times, 95);
+	console.log(
+		`step events while a senior reloads flow health (${healthBusy.reloads} reloads in ${SECONDS} s): p50 ${ms(pct(healthBusy.times, 50))}, p95 ${ms(healthP95)} (goal <= 25 ms) ${healthP95 <= 25 ? 'OK' : 'OVER GOAL'}`
+	);
+	const healthPaced = await technicians(SECONDS, seniorReload, PACE_MS);
+	const healthPacedP95 = pct(healthPaced.times, 95);
+	console.log(
+		`  paced (one event every ${PACE_MS} ms each) while a senior reloads flow health (${healthPaced.reloads} reloads): p50 ${ms(pct(healthPaced.times, 50))}, p95 ${ms(healthPacedP95)} (goal <= 25 ms) ${healthPacedP95 <= 25 ? 'OK' : 'OVER GOAL'}`
+	);
+	console.log(`  with the senior: flat out ${fairness(healthBusy)}; paced ${fairness(healthPaced)}`);
 	console.log(`RESULT ${JSON.stringify({ dashboardMedian, perQuery } satisfies Result)}`);
 	await setup.close();
 } finally {

@@ -17,12 +17,17 @@ export class FlowEditorState {
 	#timer: ReturnType<typeof setTimeout> | undefined;
 	#delay: number;
 
-	constructor(definition: FlowDefinition, options: { delay?: number } = {}) {
+	/** `select` opens the editor at that step (e.g. from flow health's link); else at the start. */
+	constructor(definition: FlowDefinition, options: { delay?: number; select?: string | null } = {}) {
 		this.definition = definition;
 		this.#delay = options.delay ?? CHECK_DELAY_MS;
 		this.check = checkFlow(definition);
 		this.selected =
-			definition.start in definition.steps ? definition.start : (Object.keys(definition.steps)[0] ?? null);
+			options.select && Object.hasOwn(definition.steps, options.select)
+				? options.select
+				: definition.start in definition.steps
+					? definition.start
+					: (Object.keys(definition.steps)[0] ?? null);
 	}
 
 	/** Replaces the draft (from the form, the YAML view or a reload) and schedules the check. */

@@ -29,6 +29,10 @@ function importedNotice(n: string | null): string | null {
 		: `Imported with ${count} problem${count === 1 ? '' : 's'}, listed below and marked on the steps. Fix them here, then submit.`;
 }
 
+function stepOf(id: string | null, steps: Record<string, unknown>): string | null {
+	return id !== null && Object.hasOwn(steps, id) ? id : null;
+}
+
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, 'senior');
 	const draft = await draftOf(event.params);
@@ -60,6 +64,8 @@ export const load: PageServerLoad = async (event) => {
 		},
 		definition: draft.definition,
 		basedOn: basedOn?.version ?? null,
+		// `?step=<id>` opens the editor at that step (links from flow health); unknown ids are ignored.
+		step: stepOf(event.url.searchParams.get('step'), draft.definition.steps),
 		imported: importedNotice(event.url.searchParams.get('imported'))
 	};
 };

@@ -21,8 +21,8 @@ async function person(name: string, role: User['role']): Promise<User> {
 	return { id: created.id, name, email, role };
 }
 
-function event(user: User, init: RequestInit = {}) {
-	const path = `/flows/${FLOW}/drafts/${draftId}`;
+function event(user: User, init: RequestInit = {}, query = '') {
+	const path = `/flows/${FLOW}/drafts/${draftId}${query}`;
 	const url = new URL(`http://shop.test${path}`);
 	return {
 		url,
@@ -64,6 +64,14 @@ describe('editor route', () => {
 		expect(Object.keys(data.definition.steps)).toEqual(Object.keys(base.steps));
 		await expect(load(tom)).rejects.toMatchObject({ status: 403 });
 		await expect(put(tom, { revision: 1, definition: base })).rejects.toMatchObject({ status: 403 });
+	});
+
+	it('opens at the step named by ?step= (flow health links here), ignoring an unknown one', async () => {
+		const second = Object.keys(base.steps)[1];
+		const at = async (q: string) => ((await pageLoad(event(ana, {}, q))) as Data).step;
+		expect(await at(`?step=${second}`)).toBe(second);
+		expect(await at('?step=no-such-step')).toBeNull();
+		expect(await at('')).toBeNull();
 	});
 
 	it('autosaves with the revision and answers 409 with the other save when two people edit', async () => {

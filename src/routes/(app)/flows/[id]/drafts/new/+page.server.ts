@@ -21,6 +21,12 @@ async function source(params: { id: string }, from: string | null) {
 	return version;
 }
 
+/** `?step=<id>` (from flow health): the new draft's editor opens at that step, if the version has it. */
+function stepQuery(url: URL, version: { definition: { steps: Record<string, unknown> } }) {
+	const id = url.searchParams.get('step');
+	return id !== null && Object.hasOwn(version.definition.steps, id) ? `?step=${encodeURIComponent(id)}` : '';
+}
+
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'senior');
 	const version = await source(event.params, event.url.searchParams.get('from'));
@@ -28,6 +34,7 @@ export const load: PageServerLoad = async (event) => {
 	return {
 		flow: { id: version.flowId, title: version.definition.title },
 		version: version.version!,
+		stepQuery: stepQuery(event.url, version),
 		drafts: drafts.map((d) => ({
 			id: d.id,
 			status: d.status,
@@ -49,6 +56,6 @@ export const actions: Actions = {
 			if (e instanceof authoring.FlowAuthoringError) return fail(409, { message: e.message });
 			throw e;
 		}
-		redirect(303, `/flows/${version.flowId}/drafts/${draftId}`);
+		redirect(303, `/flows/${version.flowId}/drafts/${draftId}${stepQuery(event.url, version)}`);
 	}
 };

@@ -52,4 +52,20 @@ describe('start a draft', () => {
 		await expect(load(event(senior, '?from=x'))).rejects.toMatchObject({ status: 400 });
 		await expect(load(event(senior, '?from=99'))).rejects.toMatchObject({ status: 404 });
 	});
+
+	it('carries ?step= (from flow health) to the new draft, so the editor opens at that step', async () => {
+		const current = (await library.currentPublished(FLOW))!;
+		const step = Object.keys(current.definition.steps)[1];
+		const q = `?from=${current.version}&step=${step}`;
+		expect(await load(event(senior, q))).toMatchObject({ stepQuery: `?step=${step}` });
+		// A step the version does not have is dropped, not passed on.
+		expect(await load(event(senior, '?step=no-such-step'))).toMatchObject({ stepQuery: '' });
+		const redirect = await (actions.default as (e: unknown) => Promise<unknown>)(
+			event(senior, q, 'POST')
+		).catch((r: unknown) => r);
+		expect(redirect).toMatchObject({
+			status: 303,
+			location: expect.stringMatching(`^/flows/${FLOW}/drafts/[0-9a-f-]{36}\\?step=${step}$`)
+		});
+	});
 });
