@@ -10,6 +10,7 @@ import { startMailWorker } from '$lib/server/mail/worker';
 import { registerJobPayments } from '$lib/server/reports/customer';
 import { seedDeviceModels } from '$lib/server/jobs/device-models';
 import { seedDemoJobs } from '$lib/server/jobs/demo';
+import { seedSymptoms } from '$lib/server/symptoms/queries';
 
 onStartup('demo seed', async () => {
 	if (process.env.TIDEMARK_DEMO === '1') await seedDemo();
@@ -18,6 +19,12 @@ onStartup('demo seed', async () => {
 // Every start, demo or not: new or changed flows/*.flow.yaml become published versions.
 onStartup('flow import', async () => {
 	await flowLibrary.importFromFiles();
+});
+
+// The symptom catalogue: the starting list and every flow tag it lacks (after the flow import, so
+// a new flow's tags are there); rows the shop edited are left alone.
+onStartup('symptom catalogue', async () => {
+	await seedSymptoms();
 });
 
 // Reference data, not demo data: intake suggests makers and models from it in every shop.

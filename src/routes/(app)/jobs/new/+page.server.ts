@@ -3,22 +3,25 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
-import { symptomVocabulary } from '$lib/server/jobs/symptoms';
+import * as catalogue from '$lib/server/symptoms/queries';
 import { makeJobIntake } from '$lib/schemas/job';
+import { groupSymptoms } from '$lib/symptoms';
 import type { Actions, PageServerLoad } from './$types';
 
-const schema = () => zod4(makeJobIntake(symptomVocabulary()));
+// Intake records any offered symptom of the catalogue, whether or not a flow covers it.
+const schemaFor = (offered: { code: string }[]) => zod4(makeJobIntake(offered.map((s) => s.code)));
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'technician');
-	const form = await superValidate(schema(), { id: 'intake' });
-	return { form, symptoms: symptomVocabulary() };
+	const offered = await catalogue.offered();
+	const form = await superValidate(schemaFor(offered), { id: 'intake' });
+	return { form, symptomGroups: groupSymptoms(offered) };
 };
 
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = await superValidate(event.request, schema(), { id: 'intake' });
+		const form = await superValidate(event.request, schemaFor(await catalogue.offered()), { id: 'intake' });
 		if (!form.valid) return fail(400, { form });
 		const job = await jobs.create(user.id, form.data);
 		redirect(303, `/jobs/${job.id}?created=1`);
