@@ -60,6 +60,14 @@ function fieldErrors(error: z.ZodError): Record<string, string> {
 	return out;
 }
 
+type Refusal = {
+	form: 'add' | 'update';
+	code?: string | null;
+	values: Record<string, string>;
+	errors: Record<string, string>;
+};
+const refuse = (status: number, data: Refusal) => fail(status, data);
+
 async function fields(event: { request: Request }) {
 	return Object.fromEntries([...(await event.request.formData())].map(([k, v]) => [k, String(v)]));
 }
@@ -69,7 +77,7 @@ export const actions: Actions = {
 		const user = requireRole(event, 'senior');
 		const values = await fields(event);
 		const parsed = symptomAdd.safeParse(values);
-		if (!parsed.success) return fail(400, { form: 'add', values, errors: fieldErrors(parsed.error) });
+		if (!parsed.success) return refuse(400, { form: 'add', values, errors: fieldErrors(parsed.error) });
 		try {
 			const row = await catalogue.add(user.id, parsed.data);
 			return {
@@ -79,7 +87,7 @@ export const actions: Actions = {
 			};
 		} catch (e) {
 			if (e instanceof catalogue.SymptomError)
-				return fail(e.code === 'exists' ? 409 : 404, {
+				return refuse(e.code === 'exists' ? 409 : 404, {
 					form: 'add',
 					values,
 					errors: { [e.field ?? 'form']: e.message }
@@ -93,7 +101,7 @@ export const actions: Actions = {
 		const code = z.string().max(60).safeParse(values.code);
 		const parsed = symptomEdit.safeParse(values);
 		if (!code.success || !parsed.success)
-			return fail(400, {
+			return refuse(400, {
 				form: 'update',
 				code: values.code ?? null,
 				values,
@@ -107,7 +115,7 @@ export const actions: Actions = {
 			return { form: 'update', saved: row.code, message };
 		} catch (e) {
 			if (e instanceof catalogue.SymptomError)
-				return fail(404, { form: 'update', code: code.data, values, errors: { form: e.message } });
+				return refuse(404, { form: 'update', code: code.data, values, errors: { form: e.message } });
 			throw e;
 		}
 	}
