@@ -99,6 +99,7 @@ test('every page passes axe-core (WCAG 2.2 A/AA) in both themes at tablet and de
 		`/runs/${f.runId}`,
 		'/flows',
 		'/flows/new',
+		'/flows/symptoms',
 		`/flows/${f.flowId}`,
 		`/flows/${f.flowId}/v/1`,
 		`/flows/${f.flowId}/diff`,

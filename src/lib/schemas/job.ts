@@ -207,8 +207,8 @@ export function promisedAtOf(
 }
 
 /**
- * The intake schema. `symptomVocabulary` is the set of tags the published flows use; pass it on the
- * server so a tag no flow knows is refused. Without it any kebab-case tag passes (client preview).
+ * The intake schema. `symptomVocabulary` is the codes of the symptom catalogue that intake offers
+ * (not retired); pass it on the server so anything else is refused. Without it any kebab-case tag passes (client preview).
  */
 export function makeJobIntake(symptomVocabulary?: readonly string[]) {
 	const known = symptomVocabulary ? new Set(symptomVocabulary) : null;
@@ -249,7 +249,7 @@ export function makeJobIntake(symptomVocabulary?: readonly string[]) {
 				ctx.addIssue({
 					code: 'custom',
 					path: ['symptoms'],
-					message: `“${tag}” is not a symptom any flow knows.`
+					message: `“${tag}” is not in the symptom catalogue (or it was retired).`
 				});
 			}
 		}

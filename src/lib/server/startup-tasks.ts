@@ -12,6 +12,7 @@ import { seedDeviceModels } from '$lib/server/jobs/device-models';
 import { seedDemoJobs } from '$lib/server/jobs/demo';
 import { seedDemoDay } from '$lib/server/demo/day';
 import { DEFAULT_HISTORY_RUNS, fillHistory, stopHistory } from '$lib/server/demo/history-status';
+import { seedSymptoms } from '$lib/server/symptoms/queries';
 
 const demo = process.env.TIDEMARK_DEMO === '1';
 /** Whether the demo started with no run history: decided before the demo's own day adds runs. */
@@ -26,6 +27,12 @@ onStartup('demo seed', async () => {
 // Every start, demo or not: new or changed flows/*.flow.yaml become published versions.
 onStartup('flow import', async () => {
 	await flowLibrary.importFromFiles();
+});
+
+// The symptom catalogue: the starting list and every flow tag it lacks (after the flow import, so
+// a new flow's tags are there); rows the shop edited are left alone.
+onStartup('symptom catalogue', async () => {
+	await seedSymptoms();
 });
 
 // Reference data, not demo data: intake suggests makers and models from it in every shop.

@@ -294,9 +294,14 @@ export type Suggestion = {
 	symptoms: string[];
 	version: number;
 	matched: string[];
+	/** Runs of every version of the flow: the shop's experience with it. */
+	runs: number;
 };
 
-/** Published flows sharing a symptom tag with `tags`, most shared tags first. For intake. */
+/**
+ * Published flows sharing a symptom tag with `tags`, best match first: most shared tags, then the
+ * flow the shop has run most, then by title. For starting a run on a job.
+ */
 export async function suggestBySymptoms(tags: string[]): Promise<Suggestion[]> {
 	const wanted = [...new Set(tags.map((t) => t.trim().toLowerCase()).filter(Boolean))];
 	if (wanted.length === 0) return [];
@@ -312,9 +317,14 @@ export async function suggestBySymptoms(tags: string[]): Promise<Suggestion[]> {
 		.innerJoin(flowVersions, and(eq(flowVersions.flowId, flows.id), eq(flowVersions.status, 'published')))
 		.where(sql`${flows.symptoms} && ${sql.param(wanted)}::text[]`)
 		.groupBy(flows.id);
+	const counts = await runsByFlow(rows.map((r) => r.id));
 	return rows
-		.map((r) => ({ ...r, matched: r.symptoms.filter((s) => wanted.includes(s)) }))
-		.sort((a, b) => b.matched.length - a.matched.length || a.title.localeCompare(b.title));
+		.map((r) => ({
+			...r,
+			matched: r.symptoms.filter((s) => wanted.includes(s)),
+			runs: counts.get(r.id) ?? 0
+		}))
+		.sort((a, b) => b.matched.length - a.matched.length || b.runs - a.runs || a.title.localeCompare(b.title));
 }
 
 export type AwaitingReview = {

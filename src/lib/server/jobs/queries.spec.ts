@@ -8,7 +8,6 @@ import * as staff from '$lib/server/staff/queries';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import * as jobs from './queries';
 import * as deviceModels from './device-models';
-import { symptomVocabulary } from './symptoms';
 
 // Real in-memory PGlite migrated from drizzle/ (DATA_DIR=memory:// in vite.config.ts).
 let techId: string;
@@ -334,14 +333,5 @@ describe('device models and symptoms', () => {
 		]);
 		expect(await deviceModels.search('halv')).toHaveLength(2);
 		expect(await deviceModels.search('%')).toEqual([]);
-	});
-
-	it('collects the symptom vocabulary from the flow files', () => {
-		const tags = symptomVocabulary();
-		// Tags written in flows/*.flow.yaml.
-		expect(tags).toEqual(
-			expect.arrayContaining(['no-power', 'restart-loop', 'not-charging', 'no-sound', 'face-unlock'])
-		);
-		expect(tags).toEqual([...tags].sort());
 	});
 });

@@ -12,6 +12,7 @@ import * as jobQueries from '$lib/server/jobs/queries';
 import * as quoteQueries from '$lib/server/quotes/queries';
 import { getMoney, getReport, getShop } from '$lib/server/settings/queries';
 import { formatJobNumber, liquidLabels, symptomLabel } from '$lib/schemas/job';
+import * as symptomCatalogue from '$lib/server/symptoms/queries';
 import { quoteTotals, type QuoteLine } from '$lib/domain/money';
 import { dataFate, type DataFate } from '$lib/domain/data-first';
 import { opensPhone } from '$lib/domain/water-resistance';
@@ -126,6 +127,7 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 	const job = await jobQueries.get(jobId);
 	if (!job) return null;
 	const db = await getDb();
+	const symptomWords = await symptomCatalogue.labels();
 	const [shop, money, settings, versions, paidMinor, receivedMinor] = await Promise.all([
 		getShop(),
 		getMoney(),
@@ -202,7 +204,8 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 			status: job.status
 		},
 		reported: {
-			symptoms: job.symptoms.map(symptomLabel),
+			// The catalogue's words (a retired symptom keeps its label); a code it lacks, spelled out.
+			symptoms: job.symptoms.map((code) => symptomWords.get(code) ?? symptomLabel(code)),
 			liquid: liquidLabels[job.liquid],
 			when: job.exposedAt,
 			submerged: job.submerged

@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
-import { symptomVocabulary } from '$lib/server/jobs/symptoms';
+import * as catalogue from '$lib/server/symptoms/queries';
 import { badRequest, readJson, type Jsonify } from '$lib/server/jobs/http';
 import { listQueryFrom, makeJobIntake } from '$lib/schemas/job';
 import type { RequestHandler } from './$types';
@@ -22,7 +22,7 @@ export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'technician');
 	const read = await readJson(event.request);
 	if (!read.ok) return read.response;
-	const parsed = makeJobIntake(symptomVocabulary()).safeParse(read.body);
+	const parsed = makeJobIntake((await catalogue.offered()).map((s) => s.code)).safeParse(read.body);
 	if (!parsed.success) return badRequest(parsed.error);
 	const job = await jobs.create(user.id, parsed.data);
 	const body: JobCreatedResponse = {

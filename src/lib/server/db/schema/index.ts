@@ -10,3 +10,4 @@ export * from './attachments';
 export * from './insights';
 export * from './quotes';
 export * from './checklists';
+export * from './symptoms';

@@ -4,6 +4,7 @@ import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from '$lib/server/runs/job-section';
+import * as symptomCatalogue from '$lib/server/symptoms/queries';
 import * as photos from '$lib/server/photos/queries';
 import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
 import { customerSection } from '$lib/server/reports/job-section';
@@ -22,6 +23,7 @@ export const load: PageServerLoad = async (event) => {
 		job,
 		staff: await jobs.assignableStaff(),
 		created: event.url.searchParams.has('created'),
+		symptomLabels: Object.fromEntries(await symptomCatalogue.labels()) as Record<string, string>,
 		runs: await jobRunsSection(job), // the Runs section (src/lib/components/run/JobRuns.svelte)
 		photos: await photos.listForJob(job.id), // the Photos section
 		customerSide: await customerSection(job.id) // the Quote and Customer sections (src/lib/components/quote/)

@@ -3,29 +3,29 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
-import { symptomVocabulary } from '$lib/server/jobs/symptoms';
+import * as catalogue from '$lib/server/symptoms/queries';
 import * as settings from '$lib/server/settings/queries';
 import { makeJobIntake } from '$lib/schemas/job';
+import { groupSymptoms } from '$lib/symptoms';
 import { localDayAfter } from '$lib/domain/queue';
 import type { Actions, PageServerLoad } from './$types';
 
-const schema = () => zod4(makeJobIntake(symptomVocabulary()));
+// Intake records any offered symptom of the catalogue, whether or not a flow covers it.
+const schemaFor = (offered: { code: string }[]) => zod4(makeJobIntake(offered.map((s) => s.code)));
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'technician');
-	const [form, { turnaroundDays }] = await Promise.all([
-		superValidate(schema(), { id: 'intake' }),
-		settings.getWorkflow()
-	]);
+	const [offered, { turnaroundDays }] = await Promise.all([catalogue.offered(), settings.getWorkflow()]);
+	const form = await superValidate(schemaFor(offered), { id: 'intake' });
 	// Proposed in UTC here; the page moves it to the browser's own calendar day once it runs.
 	form.data.promisedDate = localDayAfter(new Date(), turnaroundDays, 0);
-	return { form, symptoms: symptomVocabulary(), turnaroundDays };
+	return { form, symptomGroups: groupSymptoms(offered), turnaroundDays };
 };
 
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = await superValidate(event.request, schema(), { id: 'intake' });
+		const form = await superValidate(event.request, schemaFor(await catalogue.offered()), { id: 'intake' });
 		if (!form.valid) return fail(400, { form });
 		const job = await jobs.create(user.id, form.data);
 		redirect(303, `/jobs/${job.id}?created=1`);
