@@ -13,8 +13,8 @@ export { CAUTIONS, CAUTION_CODES, isCaution, type Caution, type CautionCode } fr
 const KEBAB = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 const kebabMessage = 'must be kebab-case: lower-case letters, digits and single hyphens (e.g. boot-current)';
 
-/** Ids the library's own pages use (`/flows/new`): a flow with one of them could never be opened. */
-export const RESERVED_FLOW_IDS: readonly string[] = ['new'];
+/** Ids the library's own pages use (`/flows/new`, `/flows/symptoms`): a flow with one of them could never be opened. */
+export const RESERVED_FLOW_IDS: readonly string[] = ['new', 'symptoms'];
 
 export const kebabId = z.string().regex(KEBAB, kebabMessage);
 const markdown = z.string().meta({ description: 'Markdown' });
