@@ -41,7 +41,7 @@ test('a senior adds a symptom, a technician books a job with it, the library cou
 	await tech.getByLabel('Maker', { exact: true }).fill('Corvana');
 	await tech.getByLabel('Model', { exact: true }).fill('Tern 6');
 	await tech.getByLabel('IMEI', { exact: true }).fill(`${body}${imeiCheckDigit(body)}`);
-	await tech.getByLabel('Liquid').selectOption('fresh');
+	await tech.getByLabel('Liquid', { exact: true }).selectOption('fresh');
 	await tech.getByLabel('Not needed').check();
 	const cameras = tech.getByRole('group', { name: 'Cameras and sensors' });
 	await cameras.getByRole('checkbox', { name: label }).check();

@@ -19,7 +19,7 @@ test('a technician takes in a phone, finds it in the list and moves it along', a
 	await page.getByLabel('Maker', { exact: true }).fill('Corvana');
 	await page.getByLabel('Model', { exact: true }).fill('Tern 6');
 	await page.getByLabel('IMEI', { exact: true }).fill(badImei);
-	await page.getByLabel('Liquid').selectOption('salt');
+	await page.getByLabel('Liquid', { exact: true }).selectOption('salt');
 	await page.getByLabel('It was submerged').check();
 	await page.getByLabel('About how deep').fill('0.5');
 	await page.getByLabel('About how long').fill('3');
@@ -77,7 +77,7 @@ test('intake asks how warm and how still the water was, judges it against the IP
 	await page.getByLabel('Maker', { exact: true }).fill('Corvana');
 	await page.getByLabel('Model', { exact: true }).fill('Tern 6');
 	await page.getByLabel('IMEI', { exact: true }).fill(`${imeiBody}${imeiCheckDigit(imeiBody)}`);
-	await page.getByLabel('Liquid').selectOption('fresh');
+	await page.getByLabel('Liquid', { exact: true }).selectOption('fresh');
 	await page.getByLabel('It was submerged').check();
 	await page.getByLabel('About how deep').fill('0.5');
 	await page.getByLabel('About how long').fill('5');
@@ -105,7 +105,9 @@ test('intake asks how warm and how still the water was, judges it against the IP
 
 	await page.getByRole('button', { name: 'Save the job' }).click();
 	await expect(page).toHaveURL(/\/jobs\/[0-9a-f-]{36}/);
-	await expect(page.getByTestId('intake-conditions')).toHaveText('Warm, jet or running tap, with soap or detergent');
+	await expect(page.getByTestId('intake-conditions')).toHaveText(
+		'Warm, jet or running tap, with soap or detergent'
+	);
 	await expect(page.getByTestId('exposure-panel')).toContainText('no immersion rating');
 });
 

@@ -17,6 +17,7 @@ import { flowVersions } from '$lib/server/db/schema/flows';
 import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import * as quotes from '$lib/server/quotes/queries';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as authoring from '$lib/server/flows/authoring';
@@ -251,11 +252,11 @@ async function walkRun(runId: string, def: FlowDefinition, actor: { id: string }
 			const r = ranges[best.k];
 			const lo = r.min ?? here.step.domain?.min ?? 0;
 			const value = r.max === undefined ? lo + 1 : lo + (r.max - lo) / 2;
-			await runs.recordEvent(runId, { type: 'MEASURE', stepId: here.id, value, idempotencyKey: key }, actor);
+			await recordEvent(runId, { type: 'MEASURE', stepId: here.id, value, idempotencyKey: key }, actor);
 		} else {
 			const outcomes = here.step.outcomes ?? [];
 			const best = outcomes.map((o, k) => ({ k, s: score(o.next) })).sort((a, b) => a.s - b.s)[0];
-			await runs.recordEvent(
+			await recordEvent(
 				runId,
 				{ type: 'ANSWER', stepId: here.id, outcome: best.k, idempotencyKey: key },
 				actor

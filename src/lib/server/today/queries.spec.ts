@@ -12,6 +12,7 @@ import * as library from '$lib/server/flows/queries';
 import * as authoring from '$lib/server/flows/authoring';
 import * as jobs from '$lib/server/jobs/queries';
 import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import * as quotes from '$lib/server/quotes/queries';
 import { toCleanAndDry } from '$lib/server/runs/walks';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
@@ -119,11 +120,7 @@ beforeAll(async () => {
 	ids.runJob = runJob;
 	ids.run = run.id;
 	for (const [i, [stepId, outcome]] of toCleanAndDry.slice(0, 4).entries())
-		await runs.recordEvent(
-			run.id,
-			{ type: 'ANSWER', stepId, outcome, idempotencyKey: `today-spec-${i}` },
-			tech
-		);
+		await recordEvent(run.id, { type: 'ANSWER', stepId, outcome, idempotencyKey: `today-spec-${i}` }, tech);
 });
 
 describe('technician', () => {
