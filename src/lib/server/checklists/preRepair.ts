@@ -93,7 +93,10 @@ export async function save(jobId: string, input: PreRepairInput, by: string | nu
 			);
 		const defs = functionTestsFor(await capabilitiesOf(job.maker, job.model, tx), 'before');
 		const test = build(defs, input, by);
-		await tx.update(jobsTable).set({ preRepairTest: test, updatedAt: new Date() }).where(eq(jobsTable.id, jobId));
+		await tx
+			.update(jobsTable)
+			.set({ preRepairTest: test, updatedAt: new Date() })
+			.where(eq(jobsTable.id, jobId));
 		await record(tx, {
 			actorId: by,
 			action: 'job.pre-repair-test',

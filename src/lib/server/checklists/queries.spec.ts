@@ -91,12 +91,31 @@ describe('repairItems', () => {
 	it('keeps the eighteen original function-test keys (saved results refer to them) among the new ones', () => {
 		expect(FUNCTION_TESTS.map((t) => t.label)).toContain('Ambient-light sensing');
 		const keys = FUNCTION_TESTS.map((t) => t.key);
-		for (const key of ['boot', 'display', 'touch', 'front-camera', 'rear-camera', 'face-unlock', 'earpiece',
-			'proximity', 'ambient-light', 'microphones', 'loudspeaker', 'wired-charging', 'wireless-charging',
-			'buttons', 'vibration', 'cellular', 'wifi', 'bluetooth'])
+		for (const key of [
+			'boot',
+			'display',
+			'touch',
+			'front-camera',
+			'rear-camera',
+			'face-unlock',
+			'earpiece',
+			'proximity',
+			'ambient-light',
+			'microphones',
+			'loudspeaker',
+			'wired-charging',
+			'wireless-charging',
+			'buttons',
+			'vibration',
+			'cellular',
+			'wifi',
+			'bluetooth'
+		])
 			expect(keys).toContain(key);
 		expect(new Set(keys).size).toBe(keys.length);
-		expect(keys).toEqual(expect.arrayContaining(['fingerprint', 'nfc', 'positioning', 'sim', 'standby-drain']));
+		expect(keys).toEqual(
+			expect.arrayContaining(['fingerprint', 'nfc', 'positioning', 'sim', 'standby-drain'])
+		);
 	});
 });
 

@@ -171,7 +171,12 @@ async function follow(
 }
 
 /** `untested`: labels holding the job back from ready (not tested, no reason given). */
-export type SaveResult = { moved: JobStatus | null; complete: boolean; untested?: string[]; message?: string };
+export type SaveResult = {
+	moved: JobStatus | null;
+	complete: boolean;
+	untested?: string[];
+	message?: string;
+};
 
 /** Ticks the repair checklist: `done` holds the keys of the ticked items. */
 export async function saveRepair(
