@@ -48,7 +48,7 @@ export const FUNCTION_TESTS: readonly FunctionTestDef[] = [
 	{ key: 'boot', label: 'Boot' },
 	{ key: 'display', label: 'Display' },
 	{ key: 'backlight', label: 'Display backlight (even, no dark patches)' },
-	{ key: 'display-stains', label: 'Display free of stains or liquid marks' },
+	{ key: 'display-stains', label: 'Display free of stains or marks' },
 	{ key: 'dead-pixels', label: 'No dead or stuck pixels' },
 	{ key: 'touch', label: 'Touch' },
 	{ key: 'front-camera', label: 'Front camera' },
