@@ -78,7 +78,7 @@ test('intake with a pre-repair test → run → repair → after-repair test →
 	}
 	await expect(form.getByLabel('Note on SIM detected')).toHaveAttribute(
 		'placeholder',
-		'Reason not tested (required)'
+		'Reason (required)'
 	);
 	await form.getByRole('button', { name: 'Save function test' }).click();
 	await expect(form.getByRole('status')).toContainText('cannot be ready to collect');
