@@ -8,6 +8,7 @@ import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as library from '$lib/server/flows/queries';
 import * as runs from '$lib/server/runs/queries';
+import { recordEvent } from '$lib/server/runs/commit';
 import * as report from '$lib/server/reports/report';
 import { capabilitiesOf, seedDeviceModels } from '$lib/server/jobs/device-models';
 import { makeJobIntake } from '$lib/schemas/job';
@@ -45,7 +46,7 @@ async function testingJob(maker: string, model: string, pre: preRepair.PreRepair
 	const test = pre ? preRepair.build(await preRepair.itemsFor(maker, model), pre, tech.id) : null;
 	const job = await jobs.create(tech.id, intake(maker, model), test);
 	const run = await runs.start(job.id, FLOW, tech);
-	await runs.recordEvent(
+	await recordEvent(
 		run.id,
 		{
 			type: 'ANSWER',

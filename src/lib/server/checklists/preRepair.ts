@@ -5,6 +5,7 @@
  */
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { text } from '$lib/schemas/text';
 import { getDb } from '$lib/server/db';
 import { jobs as jobsTable } from '$lib/server/db/schema/jobs';
 import { record } from '$lib/server/audit';
@@ -24,7 +25,7 @@ export const preRepairEditable: readonly JobStatus[] = ['received', 'diagnosing'
 
 const answer = z.object({
 	result: z.enum(functionResults).default('not-tested'),
-	note: z.string().trim().max(300, 'Keep each note under 300 characters.').default('')
+	note: text('A pre-repair note').trim().max(300, 'Keep each note under 300 characters.').default('')
 });
 export const preRepairInput = z.object({
 	couldNotPowerOn: z.boolean().default(false),
