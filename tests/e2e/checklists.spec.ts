@@ -14,6 +14,7 @@ const newJob = (page: Page) =>
 	createJob(page, {
 		customerName: 'Wren Holloway',
 		customerEmail: 'wren@example.test',
+		model: 'Tern 6 Pro', // has face unlock and wireless charging (invented demo capabilities)
 		imei: testImei('0077'),
 		symptoms: ['restart-loop']
 	});
@@ -115,6 +116,7 @@ test('a technician goes from a verdict through the checklists; the job status fo
 	await moveJob(page, jobId, 'awaiting-approval', 'repairing', 'testing');
 	await page.reload();
 	form = await setAll(page, 'Pass', { item: 'Wireless charging', result: 'Not tested' });
+	await form.getByLabel('Note on Wireless charging').fill('No charging pad at the bench today');
 	await form.getByRole('button', { name: 'Save function test' }).click();
 	await expect(form.getByRole('status')).toContainText('The job is now “Ready to collect”');
 	await expect(status(page)).toContainText('Ready to collect');

@@ -1,32 +1,12 @@
 /**
  * The two checklists after a verdict: the repair items come from the verdict's `repair` markdown,
- * the function test is the same for every phone (issue 4 §4).
+ * the function-test items from the device's capabilities ($lib/domain/functionTests).
  */
 import { marked, type Tokens } from 'marked';
+export { FUNCTION_TESTS } from '$lib/domain/functionTests';
 
 export type ChecklistKind = 'repair' | 'function-test';
 export type ChecklistDef = { key: string; label: string };
-
-export const FUNCTION_TESTS: readonly ChecklistDef[] = [
-	['boot', 'Boot'],
-	['display', 'Display'],
-	['touch', 'Touch'],
-	['front-camera', 'Front camera'],
-	['rear-camera', 'Rear camera'],
-	['face-unlock', 'Face unlock'],
-	['earpiece', 'Earpiece'],
-	['proximity', 'Proximity sensing'],
-	['ambient-light', 'Ambient-light sensing'],
-	['microphones', 'Microphones'],
-	['loudspeaker', 'Loudspeaker'],
-	['wired-charging', 'Wired charging'],
-	['wireless-charging', 'Wireless charging'],
-	['buttons', 'Buttons'],
-	['vibration', 'Vibration'],
-	['cellular', 'Cellular'],
-	['wifi', 'Wi-Fi'],
-	['bluetooth', 'Bluetooth']
-].map(([key, label]) => ({ key, label }));
 
 /** Inline markdown marks dropped so the label reads as plain words (it is shown as text, not HTML). */
 function plain(text: string): string {

@@ -88,9 +88,34 @@ describe('repairItems', () => {
 		expect(repairItems('')).toEqual([]);
 	});
 
-	it('lists the function test the issue names, eighteen items', () => {
+	it('keeps the eighteen original function-test keys (saved results refer to them) among the new ones', () => {
 		expect(FUNCTION_TESTS.map((t) => t.label)).toContain('Ambient-light sensing');
-		expect(FUNCTION_TESTS).toHaveLength(18);
+		const keys = FUNCTION_TESTS.map((t) => t.key);
+		for (const key of [
+			'boot',
+			'display',
+			'touch',
+			'front-camera',
+			'rear-camera',
+			'face-unlock',
+			'earpiece',
+			'proximity',
+			'ambient-light',
+			'microphones',
+			'loudspeaker',
+			'wired-charging',
+			'wireless-charging',
+			'buttons',
+			'vibration',
+			'cellular',
+			'wifi',
+			'bluetooth'
+		])
+			expect(keys).toContain(key);
+		expect(new Set(keys).size).toBe(keys.length);
+		expect(keys).toEqual(
+			expect.arrayContaining(['fingerprint', 'nfc', 'positioning', 'sim', 'standby-drain'])
+		);
 	});
 });
 

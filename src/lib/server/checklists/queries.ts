@@ -5,7 +5,9 @@
  * only moves the workflow allows):
  * - every repair item done → testing (from repairing);
  * - any function-test fail → diagnosing (from testing or repairing);
- * - every function test answered, none failed → ready (from testing).
+ * - every function test answered, none failed → ready (from testing), held back while an item
+ *   is "not tested" without a reason (the ready gate, gate.ts).
+ * The function-test items follow the job's device model (domain/functionTests.ts).
  */
 import { isUuid } from '$lib/schemas/ids';
 import { and, desc, eq } from 'drizzle-orm';
@@ -20,8 +22,18 @@ import { recordRunFinished, confirmationOf } from '$lib/server/insights/facts';
 import { canTransition, type JobStatus } from '$lib/domain/jobStatus';
 import type { FlowDefinition, VerdictStep } from '$lib/flows/schema';
 import { FUNCTION_TESTS, repairItems, type ChecklistDef, type ChecklistKind } from './items';
+import { functionTestsFor, type PreRepairTest } from '$lib/domain/functionTests';
+import { capabilitiesOf } from '$lib/server/jobs/device-models';
+import { gateMessage, untestedWithoutReason } from './gate';
 
 export { FUNCTION_TESTS, repairItems };
+
+type Db = Tx | Awaited<ReturnType<typeof getDb>>;
+
+/** The after-repair items asked of this job's device. */
+async function deviceTests(db: Db, job: { maker: string; model: string }) {
+	return functionTestsFor(await capabilitiesOf(job.maker, job.model, db), 'after');
+}
 
 export class ChecklistRuleError extends Error {
 	constructor(
@@ -49,6 +61,8 @@ export type ChecklistView = {
 	};
 	repair: ChecklistItem[];
 	functionTest: ChecklistItem[];
+	/** What worked when the phone came in, for the "before" beside each item; null if not recorded. */
+	preRepair: PreRepairTest | null;
 	confirmation: { confirmed: boolean; note: string; at: string } | null;
 };
 
@@ -107,7 +121,8 @@ export async function forJob(jobId: string): Promise<ChecklistView | undefined> 
 			cautions: step.cautions ?? []
 		},
 		repair: merge(repairItems(step.verdict.repair), saved.repair),
-		functionTest: merge(FUNCTION_TESTS, saved.functionTest),
+		functionTest: merge(await deviceTests(db, job), saved.functionTest),
+		preRepair: job.preRepairTest ?? null,
 		confirmation: confirmation
 			? { confirmed: confirmation.confirmed, note: confirmation.note, at: confirmation.at.toISOString() }
 			: null
@@ -155,7 +170,13 @@ async function follow(
 	return to;
 }
 
-export type SaveResult = { moved: JobStatus | null; complete: boolean };
+/** `untested`: labels holding the job back from ready (not tested, no reason given). */
+export type SaveResult = {
+	moved: JobStatus | null;
+	complete: boolean;
+	untested?: string[];
+	message?: string;
+};
 
 /** Ticks the repair checklist: `done` holds the keys of the ticked items. */
 export async function saveRepair(
@@ -203,9 +224,10 @@ export async function saveFunctionTest(
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const { job, run } = await begin(tx, jobId);
-		const unknown = Object.keys(input).filter((k) => !FUNCTION_TESTS.some((d) => d.key === k));
+		const defs = await deviceTests(tx, job);
+		const unknown = Object.keys(input).filter((k) => !defs.some((d) => d.key === k));
 		if (unknown.length) throw new ChecklistRuleError('invalid-input', `Unknown test: ${unknown.join(', ')}.`);
-		const items: ChecklistItem[] = FUNCTION_TESTS.map((d) => ({
+		const items: ChecklistItem[] = defs.map((d) => ({
 			key: d.key,
 			label: d.label,
 			result: input[d.key]?.result ?? null,
@@ -231,7 +253,9 @@ export async function saveFunctionTest(
 				by,
 				`Function test failed: ${failed.map((i) => i.label).join(', ')}`
 			);
-		} else if (complete) {
+		} else if (complete && canTransition(job.status, 'ready')) {
+			const untested = (await untestedWithoutReason(tx, job)) ?? [];
+			if (untested.length) return { moved, complete, untested, message: gateMessage(untested) };
 			moved = await follow(tx, jobId, job.status, 'ready', by, 'Function test passed');
 		}
 		return { moved, complete };

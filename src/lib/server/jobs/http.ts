@@ -9,9 +9,13 @@ export function badRequest(error: z.ZodError, message = 'Some fields need attent
 	return shared(error, message);
 }
 
-/** A rule refusal as an HTTP answer: 404 for a missing job, 409 for a move the workflow forbids. */
+/**
+ * A rule refusal as an HTTP answer: 404 for a missing job, 409 for a move the workflow forbids or
+ * the ready gate holds back (items not tested without a reason).
+ */
 export function ruleFailure(e: JobRuleError) {
-	const status = e.code === 'not-found' ? 404 : e.code === 'invalid-transition' ? 409 : 400;
+	const status =
+		e.code === 'not-found' ? 404 : e.code === 'invalid-transition' || e.code === 'untested' ? 409 : 400;
 	const issues = e.field ? [{ path: e.field, message: e.message }] : undefined;
 	return json({ message: e.message, issues } satisfies ApiError, { status });
 }

@@ -327,7 +327,7 @@ describe('device models and symptoms', () => {
 	it('seeds the invented reference models once and searches them', async () => {
 		expect(await deviceModels.seedDeviceModels()).toBe(deviceModels.seedModels.length);
 		expect(await deviceModels.seedDeviceModels()).toBe(0);
-		expect(await deviceModels.search('tern 6')).toEqual([
+		expect((await deviceModels.search('tern 6')).map(({ maker, model }) => ({ maker, model }))).toEqual([
 			{ maker: 'Corvana', model: 'Tern 6' },
 			{ maker: 'Corvana', model: 'Tern 6 Pro' }
 		]);

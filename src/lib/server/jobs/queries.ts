@@ -15,6 +15,8 @@ import { assessExposure } from '$lib/domain/exposure';
 import type { LiquidKind } from '$lib/domain/liquid';
 import { urgencyRank } from '$lib/domain/queue';
 import { isOpenSql, overdueSql, urgencyRankSql } from './urgency-sql';
+import type { PreRepairTest } from '$lib/domain/functionTests';
+import { gateMessage, untestedWithoutReason } from '$lib/server/checklists/gate';
 import { normaliseImei } from '$lib/domain/identifiers';
 import {
 	canTransition,
@@ -38,7 +40,7 @@ export { formatJobNumber } from '$lib/schemas/job';
 /** A refusal the caller shows to the user: nothing was changed. */
 export class JobRuleError extends Error {
 	constructor(
-		public code: 'not-found' | 'invalid-transition' | 'not-a-technician' | 'invalid-input',
+		public code: 'not-found' | 'invalid-transition' | 'not-a-technician' | 'invalid-input' | 'untested',
 		message: string,
 		public field?: string
 	) {
@@ -48,7 +50,12 @@ export class JobRuleError extends Error {
 
 export { nextStatuses };
 
-export async function create(actorId: string | null, input: JobIntake): Promise<Job> {
+/** `preRepairTest`: what worked when the phone came in (checklists/preRepair.ts builds it). */
+export async function create(
+	actorId: string | null,
+	input: JobIntake,
+	preRepairTest: PreRepairTest | null = null
+): Promise<Job> {
 	// The schema refuses these as null; checked again so the columns' NOT NULL is never the message.
 	const { liquid, passcodeStatus } = input;
 	if (liquid === null) throw new JobRuleError('invalid-input', 'Choose the liquid.', 'liquid');
@@ -94,6 +101,7 @@ export async function create(actorId: string | null, input: JobIntake): Promise<
 				consentAt: input.consentToOpen ? now : null,
 				notes: input.notes.trim(),
 				promisedAt: promisedAtOf(input, turnaroundDays, now),
+				preRepairTest,
 				status: 'received',
 				createdBy: actorId
 			})
@@ -106,10 +114,22 @@ export async function create(actorId: string | null, input: JobIntake): Promise<
 			action: 'job.create',
 			targetType: 'job',
 			targetId: job.id,
-			details: { number: job.number, exposure: assessment.status, consent: job.consentToOpen }
+			details: {
+				number: job.number,
+				exposure: assessment.status,
+				consent: job.consentToOpen,
+				...(preRepairTest ? { preRepairTest: preRepairSummary(preRepairTest) } : {})
+			}
 		});
 		return job;
 	});
+}
+
+function preRepairSummary(test: PreRepairTest) {
+	return {
+		couldNotPowerOn: test.couldNotPowerOn,
+		failed: test.items.filter((i) => i.result === 'fail').map((i) => i.key)
+	};
 }
 
 const technician = alias(users, 'technician');
@@ -348,6 +368,11 @@ export async function transition(
 				}`,
 				'status'
 			);
+		}
+		// The ready gate (checklists/gate.ts): a repaired phone leaves tested, or with reasons.
+		if (to === 'ready' && job.status === 'testing') {
+			const missing = await untestedWithoutReason(t, job);
+			if (missing?.length) throw new JobRuleError('untested', gateMessage(missing), 'status');
 		}
 		const [updated] = await t
 			.update(jobs)

@@ -4,6 +4,7 @@
  * query's type and its schema part ways. (The run answers live beside the run requests in
  * $lib/schemas/run.)
  */
+import { functionResults } from '$lib/domain/functionTests';
 import { z } from 'zod';
 import {
 	exposureReasons,
@@ -114,6 +115,22 @@ export const jobDetail = z
 		consentAt: at.nullable(),
 		notes: z.string(),
 		promisedAt: at.nullable().meta({ description: 'The end of the day promised to the customer.' }),
+		preRepairTest: z
+			.object({
+				couldNotPowerOn: z.boolean(),
+				items: z.array(
+					z.object({
+						key: z.string(),
+						label: z.string(),
+						result: z.enum(functionResults),
+						note: z.string()
+					})
+				),
+				at: z.string(),
+				by: z.string().nullable()
+			})
+			.nullable()
+			.meta({ description: 'What worked when the phone came in; null when not recorded.' }),
 		status: z.enum(jobStatuses),
 		technicianId: z.uuid().nullable(),
 		createdBy: z.uuid().nullable(),
@@ -142,7 +159,9 @@ export const jobDetail = z
 	.meta({ id: 'JobDetail' });
 
 export const deviceModels = z.object({
-	models: z.array(z.object({ maker: z.string(), model: z.string() }))
+	models: z.array(
+		z.object({ maker: z.string(), model: z.string(), capabilities: z.array(z.string()).nullable() })
+	)
 });
 
 export const photo = z

@@ -18,6 +18,10 @@ import { dataFate, type DataFate } from '$lib/domain/data-first';
 import { opensPhone } from '$lib/domain/water-resistance';
 import type { FlowDefinition, Severity } from '$lib/flows/schema';
 import type { Quote } from '$lib/server/db/schema/quotes';
+import { checklistResults } from '$lib/server/db/schema/checklists';
+import { capabilitiesOf } from '$lib/server/jobs/device-models';
+import { functionTestsFor, type FunctionResultValue } from '$lib/domain/functionTests';
+import type { JobDetail } from '$lib/server/jobs/queries';
 
 export type Audience = 'staff' | 'customer';
 
@@ -91,6 +95,18 @@ export type Report = {
 	refundedMinor: number;
 	currency: string;
 	terms: string;
+	/** Before (at intake) and after (the repair) per function; null when neither was recorded. */
+	functionTest: {
+		couldNotPowerOn: boolean;
+		rows: {
+			key: string;
+			label: string;
+			before: FunctionResultValue | null;
+			after: FunctionResultValue | null;
+			/** Staff cut: every note. Customer cut: only the reason an item was not tested. */
+			note: string;
+		}[];
+	} | null;
 };
 
 /** "•••• 1234": enough for the customer to recognise their phone, useless to anyone else. */
@@ -139,6 +155,7 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 
 	const [run] = await db
 		.select({
+			id: runs.id,
 			verdictStep: runs.verdictStep,
 			dataReachable: runs.dataReachable,
 			finishedAt: runs.finishedAt,
@@ -233,6 +250,44 @@ export async function build(jobId: string, audience: Audience, photoBase = ''): 
 		paidMinor,
 		refundedMinor: receivedMinor - paidMinor,
 		currency: visible?.currency ?? money.currency,
-		terms: settings.terms
+		terms: settings.terms,
+		functionTest: await functionTestOf(db, job, run?.id ?? null, audience)
+	};
+}
+
+/** Rows: the after-repair items of the device, with anything the pre-repair test had besides. */
+async function functionTestOf(
+	db: Awaited<ReturnType<typeof getDb>>,
+	job: JobDetail,
+	runId: string | null,
+	audience: Audience
+): Promise<Report['functionTest']> {
+	const [saved] = runId
+		? await db
+				.select({ items: checklistResults.items })
+				.from(checklistResults)
+				.where(and(eq(checklistResults.runId, runId), eq(checklistResults.kind, 'function-test')))
+		: [];
+	const before = job.preRepairTest;
+	if (!before && !saved) return null;
+	const after = new Map((saved?.items ?? []).map((i) => [i.key, i]));
+	const was = new Map((before?.items ?? []).map((i) => [i.key, i]));
+	const defs = functionTestsFor(await capabilitiesOf(job.maker, job.model, db), 'after');
+	const keys = [...defs.map((d) => ({ key: d.key, label: d.label }))];
+	for (const i of before?.items ?? []) if (!keys.some((k) => k.key === i.key)) keys.push(i);
+	return {
+		couldNotPowerOn: before?.couldNotPowerOn ?? false,
+		rows: keys.map(({ key, label }) => {
+			const a = after.get(key);
+			const b = was.get(key);
+			const afterResult = (a?.result ?? null) as FunctionResultValue | null;
+			const note =
+				audience === 'staff'
+					? [b?.note && `Before: ${b.note}`, a?.note && `After: ${a.note}`].filter(Boolean).join(' · ')
+					: afterResult === 'not-tested'
+						? (a?.note ?? '')
+						: '';
+			return { key, label, before: b?.result ?? null, after: afterResult, note };
+		})
 	};
 }

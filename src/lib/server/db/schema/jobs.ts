@@ -24,6 +24,7 @@ import {
 } from '../../../domain/exposure';
 import { jobStatuses } from '../../../domain/jobStatus';
 import { dataOutcomes } from '../../../domain/data-first';
+import type { PreRepairTest } from '../../../domain/functionTests';
 import { users } from './users';
 
 /** Reference list behind the maker/model suggestions at intake; the fields stay free text. */
@@ -32,7 +33,12 @@ export const deviceModels = pgTable(
 	{
 		id: uuid('id').primaryKey().defaultRandom(),
 		maker: text('maker').notNull(),
-		model: text('model').notNull()
+		model: text('model').notNull(),
+		/**
+		 * Functions the model has that not every phone has (capabilityCodes in domain/functionTests).
+		 * Null: not declared, so the function test asks about everything.
+		 */
+		capabilities: text('capabilities').array()
 	},
 	(t) => [uniqueIndex('device_models_maker_model_idx').on(sql`lower(${t.maker})`, sql`lower(${t.model})`)]
 );
@@ -108,6 +114,8 @@ export const jobs = pgTable(
 		notes: text('notes').notNull().default(''),
 		/** The date the shop told the customer the phone would be ready (intake, default from the turnaround setting). */
 		promisedAt: timestamp('promised_at', { withTimezone: true }),
+		/** What worked when the phone came in; null until someone records it. */
+		preRepairTest: jsonb('pre_repair_test').$type<PreRepairTest>(),
 		status: text('status', { enum: jobStatuses }).notNull().default('received'),
 		technicianId: uuid('technician_id').references(() => users.id),
 		createdBy: uuid('created_by').references(() => users.id),

@@ -12,6 +12,7 @@ import * as quoteActions from '$lib/server/reports/job-actions';
 import { recordDataOutcome } from '$lib/server/jobs/data-outcome';
 import { dataOutcomeInput } from '$lib/schemas/data-outcome';
 import { dataOutcomeLabels } from '$lib/domain/data-first';
+import * as preRepair from '$lib/server/checklists/preRepair';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -26,7 +27,11 @@ export const load: PageServerLoad = async (event) => {
 		symptomLabels: Object.fromEntries(await symptomCatalogue.labels()) as Record<string, string>,
 		runs: await jobRunsSection(job), // the Runs section (src/lib/components/run/JobRuns.svelte)
 		photos: await photos.listForJob(job.id), // the Photos section
-		customerSide: await customerSection(job.id) // the Quote and Customer sections (src/lib/components/quote/)
+		customerSide: await customerSection(job.id), // the Quote and Customer sections (src/lib/components/quote/)
+		preRepair: {
+			items: await preRepair.itemsFor(job.maker, job.model),
+			editable: preRepair.preRepairEditable.includes(job.status)
+		} // the Pre-repair test section (src/lib/components/functionTest/JobPreRepair.svelte)
 	};
 };
 
@@ -66,6 +71,23 @@ export const actions: Actions = {
 		} catch (e) {
 			if (e instanceof jobs.JobRuleError)
 				return refused('assign', e.code === 'not-found' ? 404 : 400, e.message);
+			throw e;
+		}
+	},
+
+	preRepair: async (event) => {
+		const user = requireRole(event, 'technician');
+		const parsed = preRepair.fromForm(await event.request.formData());
+		if (!parsed)
+			return refused('preRepair', 400, 'The pre-repair test was not in the form; reload the page.');
+		if (!parsed.success)
+			return refused('preRepair', 400, parsed.error.issues[0]?.message ?? 'Check the pre-repair test.');
+		try {
+			await preRepair.save(event.params.id, parsed.data, user.id);
+			return { action: 'preRepair', ok: true, message: 'Pre-repair test saved.' };
+		} catch (e) {
+			if (e instanceof preRepair.PreRepairRuleError)
+				return refused('preRepair', e.code === 'not-found' ? 404 : 409, e.message);
 			throw e;
 		}
 	},

@@ -8,6 +8,7 @@ import * as settings from '$lib/server/settings/queries';
 import { makeJobIntake } from '$lib/schemas/job';
 import { groupSymptoms } from '$lib/symptoms';
 import { localDayAfter } from '$lib/domain/queue';
+import * as preRepair from '$lib/server/checklists/preRepair';
 import type { Actions, PageServerLoad } from './$types';
 
 // Intake records any offered symptom of the catalogue, whether or not a flow covers it.
@@ -25,9 +26,19 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = await superValidate(event.request, schemaFor(await catalogue.offered()), { id: 'intake' });
+		const body = await event.request.formData();
+		const form = await superValidate(body, schemaFor(await catalogue.offered()), { id: 'intake' });
+		// The pre-repair test is its own section (checklists/preRepair.ts), read beside the intake schema.
+		const pre = preRepair.fromForm(body);
+		if (pre && !pre.success) {
+			form.valid = false;
+			form.errors.notes = [pre.error.issues[0]?.message ?? 'Check the pre-repair test.'];
+		}
 		if (!form.valid) return fail(400, { form });
-		const job = await jobs.create(user.id, form.data);
+		const test = pre?.success
+			? preRepair.build(await preRepair.itemsFor(form.data.maker, form.data.model), pre.data, user.id)
+			: null;
+		const job = await jobs.create(user.id, form.data, test);
 		redirect(303, `/jobs/${job.id}?created=1`);
 	}
 };

@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as checklists from '$lib/server/checklists/queries';
-import { ChecklistRuleError, FUNCTION_TESTS } from '$lib/server/checklists/queries';
+import { ChecklistRuleError } from '$lib/server/checklists/queries';
+import type { FunctionTestDef } from '$lib/domain/functionTests';
 import { JobRuleError } from '$lib/server/jobs/queries';
 import { statusLabels } from '$lib/domain/jobStatus';
 import { renderMarkdown } from '$lib/markdown/render';
@@ -21,19 +22,21 @@ export const load: PageServerLoad = async (event) => {
 };
 
 const repairForm = z.object({ done: z.array(z.string().regex(/^r\d{1,3}$/)).max(200) });
-const functionForm = z.object(
-	Object.fromEntries(
-		FUNCTION_TESTS.map((t) => [
-			t.key,
-			z.object({
-				result: z.enum(['pass', 'fail', 'not-tested']).nullable(),
-				note: text(`The note on ${t.label}`)
-					.trim()
-					.max(500, `Keep the note on ${t.label} under 500 characters.`)
-			})
-		])
-	)
-);
+/** The form for the items this job's device is asked about. */
+const functionForm = (defs: readonly FunctionTestDef[]) =>
+	z.object(
+		Object.fromEntries(
+			defs.map((t) => [
+				t.key,
+				z.object({
+					result: z.enum(['pass', 'fail', 'not-tested']).nullable(),
+					note: text(`The note on ${t.label}`)
+						.trim()
+						.max(500, `Keep the note on ${t.label} under 500 characters.`)
+				})
+			])
+		)
+	);
 const confirmForm = z.object({
 	confirmed: z.enum(['yes', 'no'], { error: 'Choose yes or no.' }),
 	note: text('The note').trim().max(2000, 'Keep the note under 2000 characters.')
@@ -71,13 +74,16 @@ export const actions: Actions = {
 	functionTest: async (event) => {
 		const user = requireRole(event, 'technician');
 		const form = await event.request.formData();
+		const view = await checklists.forJob(event.params.id);
+		if (!view) return refused('functionTest', 404, 'This job has no run with a verdict yet.');
+		const defs = view.functionTest;
 		const raw = Object.fromEntries(
-			FUNCTION_TESTS.map((t) => [
+			defs.map((t) => [
 				t.key,
 				{ result: form.get(`result-${t.key}`) || null, note: String(form.get(`note-${t.key}`) ?? '') }
 			])
 		);
-		const parsed = functionForm.safeParse(raw);
+		const parsed = functionForm(defs).safeParse(raw);
 		if (!parsed.success)
 			return refused('functionTest', 400, parsed.error.issues.map((i) => i.message).join(' '));
 		try {
@@ -88,8 +94,9 @@ export const actions: Actions = {
 			);
 			return {
 				action: 'functionTest',
-				ok: true,
-				message: `Function test saved.${movedTo(r.moved)}`
+				ok: !r.untested?.length,
+				message: `Function test saved.${movedTo(r.moved)}${r.message ? ` ${r.message}` : ''}`,
+				untested: r.untested ?? []
 			};
 		} catch (e) {
 			return ruled('functionTest', e);
