@@ -58,6 +58,16 @@ test('a senior opens the draft waiting for review, never their own, and reads th
 		await overturned.getByRole('button', { name: 'Mark all as seen' }).click();
 		await expect(overturned.getByTestId('today-empty')).toContainText('since');
 	}
+
+	// Steps whose flow health stands out: each with its reasons and a way into the editor there.
+	const standouts = page.getByTestId('today-standouts');
+	await expect(standouts).toBeVisible();
+	if (Number(await standouts.getAttribute('data-count')) > 0)
+		await expect(standouts.getByRole('link', { name: 'Edit at this step' }).first()).toHaveAttribute(
+			'href',
+			/\/flows\/[^/]+\/drafts\/new\?from=\d+&step=/
+		);
+	else await expect(standouts.getByTestId('today-empty')).toContainText('stands out');
 });
 
 test('a lead opens the first broken promise and sees the quotes to chase and the failed e-mail', async ({

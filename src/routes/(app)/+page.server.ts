@@ -4,6 +4,7 @@ import { requireRole, requireUser } from '$lib/server/guards';
 import * as today from '$lib/server/today/queries';
 import * as shop from '$lib/server/today/lead';
 import * as settings from '$lib/server/settings/queries';
+import * as flowHealth from '$lib/server/flow-health/queries';
 import { historyStatus } from '$lib/server/demo/history-status';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -20,12 +21,13 @@ async function bench(userId: string, now: Date) {
 }
 
 async function review(userId: string, now: Date) {
-	const [reviews, sentBack, overturned] = await Promise.all([
+	const [reviews, sentBack, overturned, standouts] = await Promise.all([
 		today.reviewsWaiting(userId),
 		today.sentBack(userId),
-		today.overturnedFor(userId, now)
+		today.overturnedFor(userId, now),
+		flowHealth.standouts(5)
 	]);
-	return { reviews, sentBack, overturned };
+	return { reviews, sentBack, overturned, standouts };
 }
 
 async function lead(now: Date) {
