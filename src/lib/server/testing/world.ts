@@ -13,6 +13,7 @@ import * as photos from '$lib/server/photos/queries';
 import * as library from '$lib/server/flows/queries';
 import * as authoring from '$lib/server/flows/authoring';
 import * as links from '$lib/server/reports/links';
+import { seedSymptoms } from '$lib/server/symptoms/queries';
 import { enqueue } from '$lib/server/mail/queue';
 import { png } from '$lib/server/photos/fixtures';
 import type { Role } from '$lib/roles';
@@ -66,6 +67,8 @@ export async function buildWorld(): Promise<World> {
 	const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-world-'));
 	fs.copyFileSync(path.resolve('flows', `${FLOW}.flow.yaml`), path.join(tmp, `${FLOW}.flow.yaml`));
 	await library.importFromFiles(tmp);
+	// As at start-up: the catalogue is seeded before any request, so a refused one changes nothing.
+	await seedSymptoms();
 	fs.rmSync(tmp, { recursive: true, force: true });
 
 	const tech = await member('Mira Saltmarsh', 'mira@shop.test', 'technician');
