@@ -12,7 +12,9 @@ test('a technician reads a published flow step by step, with its cautions', asyn
 	await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Library' }).click();
 	await expect(page.getByRole('heading', { name: 'Library', exact: true })).toBeVisible();
 	const rows = page.getByTestId('flow-row');
-	await expect(rows).toHaveCount(shipped);
+	// Every shipped flow, and any a journey before this one published.
+	await expect(rows.first()).toBeVisible();
+	expect(await rows.count()).toBeGreaterThanOrEqual(shipped);
 	// Technicians do not see drafts, so the column is not there.
 	await expect(page.getByText('Open drafts')).toHaveCount(0);
 

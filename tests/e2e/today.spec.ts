@@ -1,5 +1,22 @@
-import { expect, test } from '@playwright/test';
+import { expect, test, type Browser } from '@playwright/test';
+import { dataFirstFlow } from '../../src/lib/flows/data-first-fixture';
 import { signIn } from './helpers';
+
+/**
+ * A draft the lead wrote, sent for review, so the senior has one to review whatever the journeys
+ * before this one did with the demo's own drafts.
+ */
+async function leadDraftInReview(browser: Browser) {
+	const lead = await (await browser.newContext()).newPage();
+	await signIn(lead, 'lead');
+	const flow = dataFirstFlow(`review-me-${Date.now().toString(36)}`);
+	const created = await lead.request.post('/api/flows/drafts', { data: { definition: flow } });
+	expect(created.status(), await created.text()).toBe(201);
+	const { id } = (await created.json()) as { id: string };
+	const submitted = await lead.request.post(`/api/flows/drafts/${id}/submit`);
+	expect(submitted.status(), await submitted.text()).toBe(200);
+	await lead.context().close();
+}
 
 // Every role lands on Today and acts on the first item of its first lists. The test server seeds the
 // demo shop's day (src/lib/server/demo/day.ts): jobs in every status, runs under way, a draft in
@@ -35,8 +52,10 @@ test('a technician resumes their run and takes the most urgent unassigned job', 
 });
 
 test('a senior opens the draft waiting for review, never their own, and reads the note on the one sent back', async ({
-	page
+	page,
+	browser
 }) => {
+	await leadDraftInReview(browser);
 	await signIn(page, 'senior');
 	await expect(
 		page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: /Library.*to review/ })
