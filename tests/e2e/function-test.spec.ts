@@ -76,10 +76,7 @@ test('intake with a pre-repair test → run → repair → after-repair test →
 		const key = await fieldset.getAttribute('data-item');
 		await fieldset.locator('label', { hasText: key === 'sim' ? /^Not tested$/ : /^Pass$/ }).click();
 	}
-	await expect(form.getByLabel('Note on SIM detected')).toHaveAttribute(
-		'placeholder',
-		'Reason (required)'
-	);
+	await expect(form.getByLabel('Note on SIM detected')).toHaveAttribute('placeholder', 'Reason (required)');
 	await form.getByRole('button', { name: 'Save function test' }).click();
 	await expect(form.getByRole('status')).toContainText('cannot be ready to collect');
 	await expect(form.getByRole('status')).toContainText('SIM detected');

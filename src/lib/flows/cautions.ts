@@ -108,7 +108,7 @@ export const CAUTIONS: Record<CautionCode, Caution> = {
 		code: 'contaminated',
 		words: 'Contaminated liquid',
 		rule: 'Gloves for a phone that was in sewage, toilet water or an unknown chemical; clean it before the bench; wash hands afterwards.',
-		why: 'Sewage and toilet water carry germs, and an unknown chemical may burn or poison (common practice, no published source; follow your shop\'s hygiene procedure).'
+		why: "Sewage and toilet water carry germs, and an unknown chemical may burn or poison (common practice, no published source; follow your shop's hygiene procedure)."
 	},
 	'uv-resin': {
 		code: 'uv-resin',

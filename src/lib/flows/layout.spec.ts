@@ -101,8 +101,7 @@ describe('layoutFlow', () => {
 			[0, 2],
 			[1, 2]
 		]);
-		for (const e of layout.edges.filter((x) => x.source !== fork))
-			expect(e.slots).toBeGreaterThanOrEqual(1);
+		for (const e of layout.edges.filter((x) => x.source !== fork)) expect(e.slots).toBeGreaterThanOrEqual(1);
 	});
 
 	it('shortens long labels for the drawing and keeps the full text', () => {

@@ -45,7 +45,9 @@ export type Basis = (typeof BASES)[number];
 
 export const provenanceSchema = z.strictObject({
 	about: text.meta({ description: 'The value(s) this covers, e.g. "0.02 A standby limit"' }),
-	basis: z.enum(BASES).meta({ description: 'published, maker (documentation) or common-practice (no published source)' }),
+	basis: z
+		.enum(BASES)
+		.meta({ description: 'published, maker (documentation) or common-practice (no published source)' }),
 	source: text.optional().meta({
 		description: 'The named source (required when basis is published), or a note such as "from memory"'
 	})
