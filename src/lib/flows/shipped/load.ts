@@ -49,12 +49,12 @@ export function reachableAvoiding(
 	avoid: readonly string[] = []
 ): Set<string> {
 	const seen = new Set<string>();
-	const todo = avoid.includes(from) ? [] : [from];
-	while (todo.length) {
-		const id = todo.pop()!;
+	const stack = avoid.includes(from) ? [] : [from];
+	while (stack.length) {
+		const id = stack.pop()!;
 		if (seen.has(id)) continue;
 		seen.add(id);
-		for (const next of exitsOf(def.steps[id])) if (!avoid.includes(next) && !seen.has(next)) todo.push(next);
+		for (const next of exitsOf(def.steps[id])) if (!avoid.includes(next) && !seen.has(next)) stack.push(next);
 	}
 	return seen;
 }

@@ -12,20 +12,9 @@ import * as insights from '$lib/server/insights/queries';
 import { risingVerdicts } from '$lib/insights/rising';
 import { isOpenSql, overdueSql } from '$lib/server/jobs/urgency-sql';
 import { openStatuses } from '$lib/domain/queue';
+import { jobColumns as todayColumns } from './queries';
 
-const jobColumns = {
-	id: jobs.id,
-	number: jobs.number,
-	maker: jobs.maker,
-	model: jobs.model,
-	customerName: customers.name,
-	status: jobs.status,
-	liquid: jobs.liquid,
-	exposedAt: jobs.exposedAt,
-	promisedAt: jobs.promisedAt,
-	dataFirst: jobs.dataFirst,
-	createdAt: jobs.createdAt
-};
+const jobColumns = { ...todayColumns, createdAt: jobs.createdAt };
 
 /** Jobs taken in since `dayStart`, newest first. */
 export async function intakeSince(dayStart: Date) {

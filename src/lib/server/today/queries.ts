@@ -21,7 +21,8 @@ const HOUR = 3_600_000;
 /** How far back "overturned since I last looked" reaches for someone who never looked. */
 export const FIRST_LOOK_DAYS = 30;
 
-const jobColumns = {
+/** The columns a Today job line shows (the lead's lists add when it came in). */
+export const jobColumns = {
 	id: jobs.id,
 	number: jobs.number,
 	maker: jobs.maker,
