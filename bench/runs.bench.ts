@@ -85,6 +85,8 @@ async function measure(build: string, db: string): Promise<Figures> {
 		build,
 		env: {
 			TIDEMARK_DEMO: '1',
+			// The demo's year of history fills in the background on a first start: not while measuring.
+			TIDEMARK_DEMO_HISTORY: '0',
 			DEMO_PASSWORD: PASSWORD,
 			TIDEMARK_DIAGNOSTICS: '1',
 			DATABASE_URL: database?.url ?? ''
