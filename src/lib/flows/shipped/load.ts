@@ -1,7 +1,7 @@
 /**
  * Test helpers for the shipped flow files. The specs read `flows/<id>.flow.yaml`; with
  * SHIPPED_FLOWS_DIR set they read another copy instead, e.g. version 1 taken from git, which is how
- * each fix is shown to fail on the version before it (see DEVELOPERS.md, "Writing a flow").
+ * each fix is shown to fail on the version before it (see flows/README.md, "Changing a shipped flow").
  */
 import fs from 'node:fs';
 import path from 'node:path';

@@ -4,7 +4,7 @@
  * stand). A BACK is an inserted `run_steps` row and never changes afterwards, so the ids already
  * read never need reading again: each catch-up asks for `max(id)` (an index lookup) and reads the
  * BACK rows in the new id range, a bounded span per statement with a pause between, so a long
- * catch-up never holds PGlite's main thread for long (see DEVELOPERS.md, Insights).
+ * catch-up never holds PGlite's main thread for long (see docs/decisions/0001-insights-facts-in-memory.md).
  */
 import { sql } from 'drizzle-orm';
 import type { DB } from '$lib/server/db';
