@@ -50,7 +50,7 @@ export async function recordEvent(
 
 async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor): Promise<RunEventResult> {
 	const run = await lockRun(tx, runId);
-	const facts = await stepFacts(tx, runId, event.idempotencyKey);
+	const facts = await stepFacts(tx, runId, event.idempotencyKey, event.type === 'BACK');
 	if (facts.seen) return facts.seen;
 	if (run.status !== 'in-progress')
 		throw new RunRuleError(

@@ -148,19 +148,22 @@ export async function lockRun(tx: Tx, runId: string): Promise<Run> {
 
 /**
  * What an event needs to know about the run's steps: the stored result of its key, the next step
- * number, and the answer a BACK would revise (the newest one still standing; run_steps_standing_idx).
- * One statement; call it after lockRun, as its own statement, so that it sees what the event before
- * this one committed.
+ * number, and, for a BACK only, the answer it would revise (the newest one still standing;
+ * run_steps_standing_idx). One statement; call it after lockRun, as its own statement, so that it
+ * sees what the event before this one committed.
  */
-export async function stepFacts(tx: Tx, runId: string, key: string) {
+export async function stepFacts(tx: Tx, runId: string, key: string, back: boolean) {
 	const [facts] = await tx
 		.select({
 			seen: sql<RunEventResult | null>`(select rs.result from run_steps rs
 				where rs.run_id = runs.id and rs.idempotency_key = ${key})`,
 			seq: sql<number>`(select coalesce(max(rs.seq), 0)::int + 1 from run_steps rs where rs.run_id = runs.id)`,
-			last: sql<{ id: number; seq: number } | null>`(select json_build_object('id', rs.id, 'seq', rs.seq)
+			// Only a BACK revises an answer: an ANSWER or MEASURE spares the look-up.
+			last: back
+				? sql<{ id: number; seq: number } | null>`(select json_build_object('id', rs.id, 'seq', rs.seq)
 				from run_steps rs where rs.run_id = runs.id and rs.kind <> 'back' and rs.superseded_at is null
 				order by rs.seq desc limit 1)`
+				: sql<null>`null`
 		})
 		.from(runs)
 		.where(eq(runs.id, runId));
