@@ -1,15 +1,17 @@
 /**
- * Deciding one step event: one transaction per event.
+ * Deciding one step event: one read, one write.
  *
- * Invariant: an event is checked and written inside one transaction that holds its run's row lock
- * (`SELECT … FOR UPDATE`), and everything it is checked against is read after that lock, as its own
- * statement. So the events of one run are decided one after the other, each against what the one
- * before it committed, and nothing lands on a run that moved after it was checked; the unique step
- * number and key per run back this up. Events of different runs share nothing but the connection:
- * each has its own transaction, so one that fails (a bad string, a refused answer, a database
- * error) rolls back alone and never fails another.
+ * Invariant: an event is decided against one consistent read of its run (the run row and its step
+ * facts, one statement) and written in one statement that gives it the next step number, and only
+ * while the run is still in progress on the step it was decided at. Step numbers are unique per run,
+ * so of two events decided against the same read only one can be written; the other's statement
+ * fails as a whole (or finds the run moved on) and the event is decided again from a fresh read. So
+ * the events of one run land one after the other, each decided against the one before, and nothing
+ * is remembered between events, by this process or any other. An event that ends the run writes
+ * its insights facts and audit entry in the same transaction as its step. Events of different runs
+ * share nothing, so one that fails rolls back alone.
  */
-import { getDb, type Tx } from '$lib/server/db';
+import { getDb, type DB } from '$lib/server/db';
 import { record } from '$lib/server/audit';
 import { recordRunFinished } from '$lib/server/insights/facts';
 import { dataSecureRefusal } from './data-secure';
@@ -17,15 +19,18 @@ import { planEvent } from '$lib/runs/plan';
 import type { FlowEvent } from '$lib/flows/machine';
 import type { RunEventInput, RunEventResult } from '$lib/runs/types';
 import {
+	eventFacts,
 	isUuid,
-	lockRun,
 	machineFor,
 	RunRuleError,
 	stateOf,
-	stepFacts,
 	writeStep,
-	type Actor
+	type Actor,
+	type StepWrite
 } from './queries';
+
+/** How often an event overtaken by another of its run is decided again before giving up. */
+const ATTEMPTS = 8;
 
 /**
  * Applies one event to a run. A key seen before returns the stored result and writes nothing; an
@@ -39,18 +44,38 @@ export async function recordEvent(
 ): Promise<RunEventResult> {
 	if (!isUuid(runId)) throw new RunRuleError(404, 'not-found', 'No run with this id.');
 	const db = await getDb();
-	return db.transaction(async (tx) => {
-		// PGlite answers on the main thread without real I/O, so queued transactions would follow one
-		// another in microtasks and starve timers and sockets; one turn of the event loop per event
-		// keeps the server responsive (bench/runs: longest stall).
+	for (let attempt = 1; ; attempt++) {
+		// PGlite answers on the main thread without real I/O, so events queued behind each other would
+		// follow one another in microtasks and starve timers and sockets; one turn of the event loop
+		// per event keeps the server responsive (bench/runs: longest stall).
 		await new Promise((resolve) => setImmediate(resolve));
-		return decide(tx, runId, event, actor);
-	});
+		try {
+			const result = await decide(db, runId, event, actor);
+			if (result) return result;
+		} catch (e) {
+			if (!isUniqueViolation(e)) throw e;
+		}
+		if (attempt === ATTEMPTS) {
+			const { run } = await eventFacts(db, runId, event.idempotencyKey, false);
+			throw new RunRuleError(
+				409,
+				'stale-step',
+				'This run is changing too fast to answer; reload it.',
+				stateOf(run)
+			);
+		}
+	}
 }
 
-async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor): Promise<RunEventResult> {
-	const run = await lockRun(tx, runId);
-	const facts = await stepFacts(tx, runId, event.idempotencyKey, event.type === 'BACK');
+/** The event's result, or null when the run moved between the read and the write. */
+async function decide(
+	db: DB,
+	runId: string,
+	event: RunEventInput,
+	actor: Actor
+): Promise<RunEventResult | null> {
+	const facts = await eventFacts(db, runId, event.idempotencyKey, event.type === 'BACK');
+	const { run } = facts;
 	if (facts.seen) return facts.seen;
 	if (run.status !== 'in-progress')
 		throw new RunRuleError(
@@ -67,7 +92,7 @@ async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor)
 			stateOf(run)
 		);
 
-	const { definition, machine } = await machineFor(tx, run.flowVersionId);
+	const { definition, machine } = await machineFor(db, run.flowVersionId);
 	const at = new Date();
 	const planned = planEvent(definition, machine, run.snapshot, flowEvent(event), {
 		revises: facts.last?.seq ?? 0,
@@ -77,9 +102,9 @@ async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor)
 	const { plan } = planned;
 
 	// Checks of the planned target step (`plan.currentStep`) that can refuse the event go here, before
-	// anything is written: throw a RunRuleError and the transaction writes nothing.
+	// anything is written: throw a RunRuleError and nothing is written.
 	// Data first (./data-secure.ts): held until the job records what became of the data.
-	const held = await dataSecureRefusal(tx, run, definition, {
+	const held = await dataSecureRefusal(db, run, definition, {
 		from: run.currentStep,
 		to: plan.currentStep,
 		back: event.type === 'BACK',
@@ -97,7 +122,7 @@ async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor)
 		finishedAt: plan.done ? at : null
 	};
 	const result: RunEventResult = { seq: facts.seq, state: stateOf({ ...run, ...next, updatedAt: at }) };
-	await writeStep(tx, {
+	const write: StepWrite = {
 		run,
 		next,
 		at,
@@ -109,9 +134,11 @@ async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor)
 		key: event.idempotencyKey,
 		result,
 		revises: event.type === 'BACK' ? (facts.last?.id ?? null) : null
-	});
-	if (plan.done) {
-		// Insights: the finished run's flat facts row, in this transaction (src/lib/server/insights/facts.ts).
+	};
+	if (!plan.done) return (await writeStep(db, write)) ? result : null;
+	return db.transaction(async (tx) => {
+		if (!(await writeStep(tx, write))) return null;
+		// Insights: the finished run's flat facts row, with its last step (src/lib/server/insights/facts.ts).
 		await recordRunFinished(tx, runId);
 		await record(tx, {
 			actorId: actor.id,
@@ -120,8 +147,15 @@ async function decide(tx: Tx, runId: string, event: RunEventInput, actor: Actor)
 			targetId: runId,
 			details: { jobId: run.jobId, verdict: plan.verdictCode, dataReachable: plan.dataReachable }
 		});
-	}
-	return result;
+		return result;
+	});
+}
+
+/** PostgreSQL's unique_violation (23505), however the driver or the ORM wraps it. */
+function isUniqueViolation(e: unknown): boolean {
+	for (let x = e; x && typeof x === 'object'; x = (x as { cause?: unknown }).cause)
+		if ((x as { code?: unknown }).code === '23505') return true;
+	return false;
 }
 
 /** The machine's event for an API event (the step id and key are the server's business). */

@@ -147,14 +147,14 @@ export async function lockRun(tx: Tx, runId: string): Promise<Run> {
 }
 
 /**
- * What an event needs to know about the run's steps: the stored result of its key, the next step
- * number, and, for a BACK only, the answer it would revise (the newest one still standing;
- * run_steps_standing_idx). One statement; call it after lockRun, as its own statement, so that it
- * sees what the event before this one committed.
+ * One consistent read of what an event is decided against: the run row, the stored result of the
+ * event's key, the next step number, and, for a BACK only, the answer it would revise (the newest
+ * one still standing; run_steps_standing_idx). One statement, so all of it is as of one moment.
  */
-export async function stepFacts(tx: Tx, runId: string, key: string, back: boolean) {
-	const [facts] = await tx
+export async function eventFacts(db: DB | Tx, runId: string, key: string, back: boolean) {
+	const [row] = await db
 		.select({
+			run: runs,
 			seen: sql<RunEventResult | null>`(select rs.result from run_steps rs
 				where rs.run_id = runs.id and rs.idempotency_key = ${key})`,
 			seq: sql<number>`(select coalesce(max(rs.seq), 0)::int + 1 from run_steps rs where rs.run_id = runs.id)`,
@@ -167,7 +167,8 @@ export async function stepFacts(tx: Tx, runId: string, key: string, back: boolea
 		})
 		.from(runs)
 		.where(eq(runs.id, runId));
-	return facts;
+	if (!row) throw new RunRuleError(404, 'not-found', 'No run with this id.');
+	return row;
 }
 
 /** One accepted event as it is stored: the step row, a BACK's revision, and the run row. */
@@ -190,28 +191,37 @@ export type StepWrite = {
 };
 
 /**
- * Writes an accepted event in one statement: the step row, a BACK's revision and the run row. Call
- * it in the transaction that holds the run's lock (lockRun).
+ * Writes an accepted event in one statement: the run row, then the step row as number `seq` and a
+ * BACK's revision only if the run row was still in progress on the step the event was decided at.
+ * Returns false when it was not (nothing written). The unique step number per run refuses a second
+ * event decided against the same read (the statement fails as a whole): see ./commit.ts.
  */
-export async function writeStep(tx: Tx, w: StepWrite): Promise<void> {
+export async function writeStep(db: DB | Tx, w: StepWrite): Promise<boolean> {
 	const { run, next } = w;
 	const at = w.at.toISOString();
 	const json = (v: unknown) => JSON.stringify(v);
-	await tx.execute(sql`
-		with step as (
+	const rows = await db.execute<{ moved: number }>(sql`
+		with moved as (
+			update ${runs} set snapshot = ${json(next.snapshot)}::jsonb, current_step = ${next.currentStep},
+				status = ${next.status}, verdict_code = ${next.verdictCode}, verdict_step = ${next.verdictStep},
+				data_reachable = ${next.dataReachable}::boolean,
+				finished_at = ${next.finishedAt?.toISOString() ?? null}::timestamptz, updated_at = ${at}::timestamptz
+			where id = ${run.id}::uuid and status = 'in-progress' and current_step = ${run.currentStep}
+			returning id
+		), step as (
 			insert into ${runSteps} (run_id, seq, step_id, kind, answer, notes, actor_id, entered_at, answered_at,
 				idempotency_key, result)
-			values (${run.id}::uuid, ${w.seq}, ${run.currentStep}, ${w.kind}, ${json(w.answer)}::jsonb, ${w.notes},
+			select moved.id, ${w.seq}, ${run.currentStep}, ${w.kind}, ${json(w.answer)}::jsonb, ${w.notes},
 				${w.actorId}::uuid, ${run.updatedAt.toISOString()}::timestamptz, ${at}::timestamptz, ${w.key},
-				${json(w.result)}::jsonb)
+				${json(w.result)}::jsonb
+			from moved
 		), revised as (
-			update ${runSteps} set superseded_at = ${at}::timestamptz where id = ${w.revises}::bigint
+			update ${runSteps} set superseded_at = ${at}::timestamptz
+			where id = ${w.revises}::bigint and exists (select 1 from moved)
 		)
-		update ${runs} set snapshot = ${json(next.snapshot)}::jsonb, current_step = ${next.currentStep},
-			status = ${next.status}, verdict_code = ${next.verdictCode}, verdict_step = ${next.verdictStep},
-			data_reachable = ${next.dataReachable}::boolean, finished_at = ${next.finishedAt?.toISOString() ?? null}::timestamptz,
-			updated_at = ${at}::timestamptz
-		where id = ${run.id}::uuid`);
+		select count(*)::int as moved from moved`);
+	const list = Array.isArray(rows) ? rows : (rows as { rows: { moved: number }[] }).rows;
+	return Number(list[0]?.moved ?? 0) === 1;
 }
 
 /** Stops a run that is under way; the reason is kept with it. */
