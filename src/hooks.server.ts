@@ -3,11 +3,11 @@ import type { ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { authHandle } from '$lib/server/auth';
 import { DataDirInUseError } from '$lib/server/db/lock';
+import { EnvError } from '$lib/server/env';
 import { headersHandle } from '$lib/server/hooks/headers';
 import { paramsHandle } from '$lib/server/hooks/params';
 import { userHandle } from '$lib/server/hooks/user';
 import { shutdown, startup } from '$lib/server/startup';
-import '$lib/server/startup-tasks';
 import { config as zodConfig } from 'zod/v4/core';
 
 // As in hooks.client.ts: no `new Function` fast path, so the server and the browser validate alike.
@@ -15,16 +15,10 @@ zodConfig({ jitless: true });
 
 export const init: ServerInit = async () => {
 	if (building) return;
-	if (!process.env.AUTH_SECRET) {
-		console.error(
-			'AUTH_SECRET is not set. Set it to a long random string (see README), or use `npm start` for the demo.'
-		);
-		process.exit(1);
-	}
 	try {
 		await startup();
 	} catch (e) {
-		if (e instanceof DataDirInUseError) {
+		if (e instanceof EnvError || e instanceof DataDirInUseError) {
 			console.error(e.message);
 			process.exit(1);
 		}

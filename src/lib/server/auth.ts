@@ -8,6 +8,7 @@ import { clearFailedSignIns, recordFailedSignIn, signInBlockedFor, waitMessage }
 import { getDb } from '$lib/server/db';
 import { record } from '$lib/server/audit';
 import type { Role } from '$lib/roles';
+import { env } from '$lib/server/env';
 
 export class DisabledAccount extends CredentialsSignin {
 	code = 'disabled';
@@ -86,7 +87,7 @@ const auth = SvelteKitAuth(async (event) => ({
 	session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
 	// @auth/sveltekit ignores AUTH_TRUST_HOST in production builds; adapter-node sits behind ORIGIN.
 	trustHost: true,
-	secret: process.env.AUTH_SECRET,
+	secret: env().AUTH_SECRET,
 	pages: { signIn: '/signin' },
 	providers: [
 		Credentials({

@@ -4,13 +4,14 @@
  * up every other. Off unless TIDEMARK_DIAGNOSTICS=1; the histogram then costs one timer.
  */
 import { monitorEventLoopDelay } from 'node:perf_hooks';
+import { env } from '$lib/server/env';
 
 type IntervalHistogram = ReturnType<typeof monitorEventLoopDelay>;
 
 const g = globalThis as unknown as { __tidemarkLoop?: IntervalHistogram };
 
 export function diagnosticsEnabled() {
-	return process.env.TIDEMARK_DIAGNOSTICS === '1';
+	return env().TIDEMARK_DIAGNOSTICS;
 }
 
 function histogram() {

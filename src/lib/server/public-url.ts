@@ -3,11 +3,11 @@
  * when the app sits behind a proxy with another public name, else adapter-node's ORIGIN, else
  * localhost on PORT. Used for links in e-mails and for checkout return addresses.
  */
+import { env } from '$lib/server/env';
+
 export function publicBaseUrl(): string {
-	const raw =
-		process.env.PUBLIC_BASE_URL?.trim() ||
-		process.env.ORIGIN?.trim() ||
-		`http://localhost:${process.env.PORT || 3000}`;
+	const { PUBLIC_BASE_URL, ORIGIN, PORT } = env();
+	const raw = PUBLIC_BASE_URL || ORIGIN || `http://localhost:${PORT}`;
 	return raw.replace(/\/+$/, '');
 }
 

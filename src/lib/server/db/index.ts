@@ -2,25 +2,47 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { PGlite } from '@electric-sql/pglite';
 import { drizzle as drizzlePglite, type PgliteDatabase } from 'drizzle-orm/pglite';
-import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
+import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
+import { drizzle as drizzlePg, type NodePgDatabase } from 'drizzle-orm/node-postgres';
+import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
+import type { PgDatabase, PgQueryResultHKT } from 'drizzle-orm/pg-core';
 import pg from 'pg';
+import { env } from '$lib/server/env';
 import * as schema from './schema';
-import { migrations } from './migrations';
 import { lockDataDir, releaseLock } from './lock';
 
 export { schema };
-/** The app's Drizzle handle. Typed as the PGlite flavour; the node-postgres one has the same query API. */
-export type DB = PgliteDatabase<typeof schema>;
+type Schema = typeof schema;
+
+type Rows<T> = { rows: T[] };
+/** What both drivers answer to a raw `execute`: at least the rows. */
+export interface RowsResult extends PgQueryResultHKT {
+	type: Rows<this['row']>;
+}
+/** The app's Drizzle handle: the query API the embedded (PGlite) and PostgreSQL drivers share. */
+export type DB = PgDatabase<RowsResult, Schema>;
 export type Tx = Parameters<Parameters<DB['transaction']>[0]>[0];
 export type DbKind = 'pglite' | 'postgres';
 
+/** An open database, by driver, so each is migrated by drizzle's own migrator for it. */
+type Opened =
+	| { kind: 'pglite'; db: PgliteDatabase<Schema>; close: () => Promise<void> }
+	| { kind: 'postgres'; db: NodePgDatabase<Schema>; close: () => Promise<void> };
 type Handle = { db: DB; kind: DbKind; close: () => Promise<void> };
 
 export function dataDir() {
-	return process.env.DATA_DIR || './data';
+	return env().DATA_DIR;
 }
 
-async function openPglite(dir: string): Promise<Handle> {
+/**
+ * drizzle/ (written by `npm run db:generate`), resolved from the working directory like flows/:
+ * the server runs from the project folder (`npm start`, `node build`).
+ */
+export function migrationsDir() {
+	return path.resolve('drizzle');
+}
+
+async function openPglite(dir: string): Promise<Opened> {
 	if (dir.startsWith('memory://')) {
 		const client = await PGlite.create();
 		return { db: drizzlePglite({ client, schema }), kind: 'pglite', close: () => client.close() };
@@ -42,27 +64,29 @@ async function openPglite(dir: string): Promise<Handle> {
 	}
 }
 
-function openPostgres(url: string): Handle {
-	const pool = new pg.Pool({ connectionString: url, max: Number(process.env.DATABASE_POOL_SIZE ?? 10) });
-	const db = drizzlePg({ client: pool, schema }) as unknown as DB;
-	return { db, kind: 'postgres', close: () => pool.end() };
+function openPostgres(url: string): Opened {
+	const pool = new pg.Pool({ connectionString: url, max: env().DATABASE_POOL_SIZE });
+	return { db: drizzlePg({ client: pool, schema }), kind: 'postgres', close: () => pool.end() };
 }
 
-/** Applies the embedded drizzle/ migrations with the same call drizzle's own migrators make. */
-export async function migrateDb(db: DB) {
-	const d = db as unknown as {
-		dialect: { migrate: (m: unknown, s: unknown, c: object) => Promise<void> };
-		session: unknown;
-	};
-	await d.dialect.migrate(migrations, d.session, { migrationsFolder: '' });
+/** Applies drizzle/'s migrations not yet applied, with the migrator of the database's driver. */
+async function migrateDb(opened: Opened) {
+	const config = { migrationsFolder: migrationsDir() };
+	if (opened.kind === 'pglite') await migratePglite(opened.db, config);
+	else await migratePg(opened.db, config);
 }
 
 /** Opens and migrates a database: DATABASE_URL wins, else PGlite in DATA_DIR ('memory://' for tests). */
 export async function openDatabase(): Promise<Handle> {
-	const url = process.env.DATABASE_URL;
-	const handle = url ? openPostgres(url) : await openPglite(dataDir());
-	await migrateDb(handle.db);
-	return handle;
+	const url = env().DATABASE_URL;
+	const opened = url ? openPostgres(url) : await openPglite(dataDir());
+	try {
+		await migrateDb(opened);
+	} catch (e) {
+		await opened.close();
+		throw e;
+	}
+	return opened;
 }
 
 // One database per process, kept on globalThis so that Vite's HMR does not open the folder twice.

@@ -1,5 +1,5 @@
 /**
- * The demo's invented history as it fills in the background on a first start (startup-tasks.ts):
+ * The demo's invented history as it fills in the background on a first start (startup.ts):
  * Today and Insights show a notice while it runs. One per process, on globalThis so Vite's HMR
  * keeps it.
  */
@@ -66,4 +66,37 @@ export async function fillHistory(runs: number, log = console.log): Promise<Hist
 export async function stopHistory(running: Promise<unknown> | null) {
 	g.__tidemarkHistoryStop = true;
 	await running;
+}
+
+let running: { timer: ReturnType<typeof setTimeout>; fill: Promise<unknown> | null } | null = null;
+
+/**
+ * Start-up step, for a demo that started with no run history. `runs` (TIDEMARK_DEMO_HISTORY): unset
+ * fills a year in the background once the server listens; 0 skips it; N writes N runs now, before
+ * the server listens (the browser tests).
+ */
+export async function startDemoHistory(runs: number | undefined) {
+	if (runs === 0) {
+		console.log('[demo] TIDEMARK_DEMO_HISTORY=0: no invented history (`npm run demo:history` adds it).');
+		return;
+	}
+	if (runs) {
+		await generateHistory({ runs, seed: 6, extraTechnicians: false });
+		return;
+	}
+	// adapter-node listens as soon as startup() returns; the fill starts just after.
+	const state: NonNullable<typeof running> = {
+		timer: setTimeout(() => (state.fill = fillHistory(DEFAULT_HISTORY_RUNS)), 200),
+		fill: null
+	};
+	running = state;
+}
+
+/** Shutdown step: a fill not yet begun never starts; one under way stops after its batch. */
+export async function stopDemoHistory() {
+	const state = running;
+	running = null;
+	if (!state) return;
+	clearTimeout(state.timer);
+	await stopHistory(state.fill);
 }

@@ -1,5 +1,6 @@
 import * as staff from '$lib/server/staff/queries';
 import * as shop from '$lib/server/settings/queries';
+import { env } from '$lib/server/env';
 
 /** The invented demo shop and its staff. Every name here is made up. */
 export const demoShop = { name: 'Low Tide Phone Clinic' };
@@ -10,7 +11,7 @@ export const demoStaff = [
 ] as const;
 
 export function demoPassword() {
-	return process.env.DEMO_PASSWORD || 'tidemark-demo';
+	return env().DEMO_PASSWORD;
 }
 
 /** Seeds the demo shop into an empty database; does nothing when any staff member exists. */

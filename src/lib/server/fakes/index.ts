@@ -8,9 +8,10 @@ import { setFakePayments } from '$lib/server/payments/config';
 import { absoluteUrl } from '$lib/server/public-url';
 import { startFakeSmtp, type FakeSmtp } from './smtp';
 import { startFakePayments, type FakePayments } from './payments';
+import { env } from '$lib/server/env';
 
 export function fakesAllowed(): boolean {
-	return process.env.TIDEMARK_DEMO === '1' || process.env.TIDEMARK_FAKES === '1';
+	return env().TIDEMARK_DEMO || env().TIDEMARK_FAKES;
 }
 
 /** Where the fake SMTP server keeps what it received; null when the database is in memory too. */
@@ -30,7 +31,7 @@ export async function startFakes(): Promise<Running> {
 	if (g.__tidemarkFakes) return g.__tidemarkFakes;
 	const running: Running = { smtp: null, payments: null };
 	if (!fakesAllowed()) return running;
-	if (!process.env.SMTP_URL?.trim()) {
+	if (!env().SMTP_URL) {
 		// Refuses the reserved .invalid domain (RFC 2606) with a permanent 550, like a real server
 		// refusing a domain that cannot exist, so a bounce can be shown and tested.
 		running.smtp = await startFakeSmtp({ dir: fakeMailboxDir(), rejectRecipients: /\.invalid$/i });
@@ -39,7 +40,7 @@ export async function startFakes(): Promise<Running> {
 			`[fakes] local SMTP server on ${running.smtp.url}${running.smtp.dir ? `, mailbox ${running.smtp.dir}` : ''}`
 		);
 	}
-	if (!process.env.STRIPE_SECRET_KEY?.trim()) {
+	if (!env().STRIPE_SECRET_KEY) {
 		running.payments = await startFakePayments({ webhookUrl: () => absoluteUrl('/api/payments/webhook') });
 		const { secretKey, webhookSecret, host, port } = running.payments;
 		setFakePayments({ secretKey, webhookSecret, endpoint: { host, port, protocol: 'http' } });

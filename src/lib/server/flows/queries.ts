@@ -9,12 +9,13 @@ import { formatPath, type FlowProblem } from '$lib/flows/check';
 import type { FlowDefinition } from '$lib/flows/schema';
 import { hasRole, type Role } from '$lib/roles';
 import { checksumOf } from './checksum';
+import { env } from '$lib/server/env';
 
 const SUFFIX = '.flow.yaml';
 
 /** Where the shipped flows live. Resolved from the working directory, as `node build` runs from the repo root. */
 export function flowsDir() {
-	return path.resolve(process.env.FLOWS_DIR ?? 'flows');
+	return path.resolve(env().FLOWS_DIR);
 }
 
 /** A stored version with its definition's steps back in authored order. */

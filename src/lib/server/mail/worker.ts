@@ -203,3 +203,18 @@ export function startMailWorker(options: ProcessOptions & { intervalMs?: number 
 		}
 	};
 }
+
+// The server's one background sender, started and stopped by startup()/shutdown().
+let background: MailWorker | null = null;
+
+/** Start-up step: sends queued mail in the background. */
+export function startBackgroundMail() {
+	background ??= startMailWorker();
+}
+
+/** Shutdown step: waits for the pass in flight, then stops. */
+export async function stopBackgroundMail() {
+	const worker = background;
+	background = null;
+	await worker?.stop();
+}

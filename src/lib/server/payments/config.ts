@@ -1,4 +1,5 @@
 import Stripe from 'stripe';
+import { env } from '$lib/server/env';
 
 /**
  * How the app reaches the payment service: STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET when set;
@@ -19,10 +20,16 @@ const g = globalThis as unknown as {
 };
 
 export function paymentsConfig(): PaymentsConfig | null {
-	const secretKey = process.env.STRIPE_SECRET_KEY?.trim();
-	if (secretKey)
-		return { secretKey, webhookSecret: process.env.STRIPE_WEBHOOK_SECRET?.trim() || null, fake: false };
+	const { STRIPE_SECRET_KEY: secretKey, STRIPE_WEBHOOK_SECRET } = env();
+	if (secretKey) return { secretKey, webhookSecret: STRIPE_WEBHOOK_SECRET ?? null, fake: false };
 	return g.__tidemarkFakePayments ?? null;
+}
+
+/** Start-up: a real key without the webhook's signing secret means payments never confirm. */
+export function warnIfNoWebhookSecret() {
+	const { STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET } = env();
+	if (STRIPE_SECRET_KEY && !STRIPE_WEBHOOK_SECRET)
+		console.warn('[payments] STRIPE_WEBHOOK_SECRET is not set: payment confirmations will be refused.');
 }
 
 /** Called when the local fake starts (and stops: null). */
