@@ -1,14 +1,21 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { eq } from 'drizzle-orm';
 import Stripe from 'stripe';
+import { PgTransaction } from 'drizzle-orm/pg-core';
 import { getDb } from '$lib/server/db';
 import { auditLog } from '$lib/server/db/schema';
 import { paymentEvents, payments } from '$lib/server/db/schema/payments';
 import type { FakePayments } from '$lib/server/fakes/payments';
 import { MAX_MINOR } from '$lib/domain/money';
 import { createCheckout, PaymentRuleError } from './checkout';
-import { onPaymentChange } from './webhook';
+import { applyJobPayment } from '$lib/server/reports/customer';
 import { pay, postWebhook, signer, startWebhookHarness } from './fixtures';
+
+// The job effect as it is, watched: which changes the webhook hands to it.
+vi.mock('$lib/server/reports/customer', async (importOriginal) => {
+	const real = await importOriginal<typeof import('$lib/server/reports/customer')>();
+	return { ...real, applyJobPayment: vi.fn(real.applyJobPayment) };
+});
 
 // End to end in node: the official SDK creates sessions at the local fake (started the way the app
 // starts it), the fake's checkout page is "clicked" over HTTP, and the fake posts its signed
@@ -135,18 +142,15 @@ describe('checkout through the SDK and the local fake', () => {
 		expect(fake.sessions.size).toBeGreaterThan(0);
 	});
 
-	it('calls a domain’s handler inside the webhook transaction', async () => {
-		const seen: string[] = [];
-		const off = onPaymentChange('job', async (_tx, p, previous) => {
-			seen.push(`${p.referenceId}:${previous}->${p.status}`);
-		});
-		try {
-			const { url } = await checkout('J-8');
-			await pay(url, 'succeed');
-		} finally {
-			off();
-		}
-		expect(seen).toEqual(['J-8:pending->paid']);
+	it('hands a job payment’s change to the job code inside the webhook transaction', async () => {
+		vi.mocked(applyJobPayment).mockClear();
+		const { url } = await checkout('J-8');
+		await pay(url, 'succeed');
+		const calls = vi.mocked(applyJobPayment).mock.calls;
+		expect(calls.map(([, p, previous]) => `${p.referenceId}:${previous}->${p.status}`)).toEqual([
+			'J-8:pending->paid'
+		]);
+		expect(calls[0][0]).toBeInstanceOf(PgTransaction);
 	});
 
 	it('is refused by the fake with a wrong key, as the service refuses it', async () => {

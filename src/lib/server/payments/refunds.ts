@@ -12,7 +12,7 @@ import { getDb, type Tx } from '$lib/server/db';
 import { paymentRefunds, payments, type Payment } from '$lib/server/db/schema/payments';
 import { record } from '$lib/server/audit';
 import { MAX_MINOR, formatMoney } from '$lib/domain/money';
-import { notifyPaymentChange } from './changes';
+import { applyPaymentChange } from './changes';
 import { paymentsClient } from './config';
 import type { Applied } from './webhook';
 
@@ -272,7 +272,7 @@ export async function applyRefund(tx: Tx, event: Stripe.Event, r: Stripe.Refund)
 			paymentMinor: payment.amountMinor,
 			currency: payment.currency
 		});
-		await notifyPaymentChange(tx, updated, payment.status, { refundId: row.id, amountMinor: r.amount });
+		await applyPaymentChange(tx, updated, payment.status, { refundId: row.id, amountMinor: r.amount });
 		return { outcome: 'applied: refund', paymentId: payment.id };
 	}
 	if (r.status === 'failed' || r.status === 'canceled') {
@@ -289,7 +289,7 @@ export async function applyRefund(tx: Tx, event: Stripe.Event, r: Stripe.Refund)
 		});
 		if (row.status === 'succeeded') {
 			const updated = await setRefunded(tx, payment, payment.refundedMinor - row.amountMinor, now);
-			await notifyPaymentChange(tx, updated, payment.status, {
+			await applyPaymentChange(tx, updated, payment.status, {
 				refundId: row.id,
 				amountMinor: -row.amountMinor
 			});

@@ -4,11 +4,9 @@ import Stripe from 'stripe';
 import { getDb, type Tx } from '$lib/server/db';
 import { paymentEvents, payments } from '$lib/server/db/schema/payments';
 import { record } from '$lib/server/audit';
-import { notifyPaymentChange } from './changes';
+import { applyPaymentChange } from './changes';
 import { paymentsClient, paymentsConfig } from './config';
 import { applyRefund, noteChargeRefunded } from './refunds';
-
-export { onPaymentChange, type PaymentChangeHandler } from './changes';
 
 export type WebhookResponse = { received: boolean; duplicate?: boolean; outcome?: string; message?: string };
 export type WebhookResult = { status: number; body: WebhookResponse };
@@ -151,6 +149,6 @@ async function change(
 			currency: payment.currency
 		}
 	});
-	await notifyPaymentChange(tx, updated, payment.status);
+	await applyPaymentChange(tx, updated, payment.status);
 	return { outcome: `applied: ${to}`, paymentId: payment.id };
 }

@@ -18,7 +18,7 @@ import { makeJobIntake } from '$lib/schemas/job';
 import * as quotesQ from '$lib/server/quotes/queries';
 import * as links from './links';
 import * as report from './report';
-import { registerJobPayments, sendReport, startPayment } from './customer';
+import { sendReport, startPayment } from './customer';
 
 // Real in-memory PGlite; the payment SDK talks to the local fake (as payments.spec.ts does). A
 // webhook is built here and signed with the fake's secret by the SDK's own test helper.
@@ -75,7 +75,6 @@ beforeAll(async () => {
 	delete process.env.STRIPE_SECRET_KEY;
 	delete process.env.SMTP_URL;
 	await startFakes();
-	registerJobPayments();
 });
 
 afterAll(async () => {

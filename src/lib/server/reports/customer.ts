@@ -20,7 +20,7 @@ import {
 	type ShopInfo
 } from '$lib/server/mail/templates';
 import { createCheckout } from '$lib/server/payments/checkout';
-import { onPaymentChange, type RefundChange } from '$lib/server/payments/changes';
+import type { RefundChange } from '$lib/server/payments/changes';
 import { absoluteUrl } from '$lib/server/public-url';
 import { getReport, getShop, shopSchema } from '$lib/server/settings/queries';
 import { settings as settingsTable } from '$lib/server/db/schema/settings';
@@ -155,7 +155,7 @@ export async function startPayment(jobId: string, quoteId: string, kind: Payment
 }
 
 /**
- * Webhook effect for job payments, inside the webhook's transaction: the quote's paid amount
+ * Webhook effect for job payments (payments/changes.ts calls it), inside the webhook's transaction: the quote's paid amount
  * follows the payment (a confirmed refund takes its amount back), and a receipt is queued for a
  * confirmed payment, a refund notice for a confirmed refund.
  */
@@ -230,12 +230,6 @@ export async function applyJobPayment(
 		paymentRef: payment.id
 	});
 	await enqueue(tx, { to: customer.email, ...mail, related: { type: 'job', id: ref.jobId } });
-}
-
-const g = globalThis as unknown as { __tidemarkJobPayments?: () => void };
-/** Registers the webhook effect once per process (start-up task, and tests). */
-export function registerJobPayments() {
-	g.__tidemarkJobPayments ??= onPaymentChange('job', applyJobPayment);
 }
 
 /**
