@@ -53,6 +53,11 @@ const meta = {
 };
 
 const answers = new Map<string, { facts: number; revisions: number; value: unknown }>();
+/** Forgets the read definitions and the computed answers (caches.ts). */
+export function forgetFlowHealth() {
+	definitions.clear();
+	answers.clear();
+}
 function memo<T>(key: string, r: Awaited<ReturnType<typeof ready>>, compute: () => T): T {
 	const hit = answers.get(key);
 	if (hit && hit.facts === r.facts.generation && hit.revisions === r.revisions.generation)

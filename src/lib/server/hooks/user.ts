@@ -9,6 +9,11 @@ const SESSION_CACHE_MS = 60_000;
 const SESSION_CACHE_SIZE = 5000;
 const sessions = new Map<string, { userId: string | null; gen: number; until: number }>();
 
+/** Forgets every remembered token (caches.ts). */
+export function forgetSessionTokens() {
+	sessions.clear();
+}
+
 /** The session cookie(s) Auth.js wrote (chunked tokens come as `.0`, `.1`, …), or '' when none. */
 function sessionToken(cookies: Cookies) {
 	return cookies

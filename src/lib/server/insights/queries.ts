@@ -21,6 +21,10 @@ async function ready() {
  * one per request. Scanning 100,000 facts takes tens of milliseconds on a busy 2-core machine.
  */
 const answers = new Map<string, { generation: number; labels: unknown; value: unknown }>();
+/** Forgets the computed answers (caches.ts). */
+export function forgetAnswers() {
+	answers.clear();
+}
 async function memo<T>(name: string, f: FilterValues, compute: (r: Awaited<ReturnType<typeof ready>>) => T) {
 	const r = await ready();
 	const key = `${name}?${filterQuery(f)}`;

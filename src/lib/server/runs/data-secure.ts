@@ -32,6 +32,11 @@ export async function reachedInOtherRun(db: DB | Tx, run: { id: string; jobId: s
 const open = new Set<string>();
 const OPEN_MAX = 5000;
 
+/** Forgets the remembered jobs (caches.ts). */
+export function forgetOpenJobs() {
+	open.clear();
+}
+
 /** Remembers a job read elsewhere (a run's start locks it) whose gate is open for good. */
 export function noteJob(job: { id: string; dataFirst: boolean; dataOutcome: string | null }) {
 	if (job.dataFirst && !job.dataOutcome) return;

@@ -45,6 +45,11 @@ export type Actor = { id: string };
 // Published versions never change, so their compiled machines can be kept for the process's life.
 const compiled = new Map<string, { definition: FlowDefinition; machine: FlowMachine }>();
 
+/** Forgets the compiled machines (caches.ts). */
+export function forgetCompiled() {
+	compiled.clear();
+}
+
 export async function machineFor(tx: DB | Tx, versionId: string) {
 	const hit = compiled.get(versionId);
 	if (hit) return hit;

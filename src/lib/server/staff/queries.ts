@@ -62,6 +62,11 @@ export async function findSignedIn(id: string): Promise<StaffMember | undefined>
 	return member;
 }
 
+/** Forgets every cached signed-in user (caches.ts; staff writes do it themselves). */
+export function forgetSignedIn() {
+	signedIn.clear();
+}
+
 /** Runs a staff write and forgets every cached signed-in user, before and after it commits. */
 async function staffWrite<T>(write: () => Promise<T>): Promise<T> {
 	signedIn.clear();
