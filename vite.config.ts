@@ -1,11 +1,10 @@
 import fs from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { sveltekit } from '@sveltejs/kit/vite';
 import tailwindcss from '@tailwindcss/vite';
 import { svelteTesting } from '@testing-library/svelte/vite';
 import { defineConfig } from 'vitest/config';
 
-// `npm run dev` reads a local .env into process.env (the server code reads process.env directly).
+// `npm run dev` reads a local .env into process.env (src/lib/server/env.ts checks it at start-up).
 if (!process.env.VITEST && fs.existsSync('.env')) process.loadEnvFile('.env');
 
 export default defineConfig({
@@ -23,14 +22,6 @@ export default defineConfig({
 					environment: 'jsdom',
 					include: ['src/**/*.svelte.spec.ts'],
 					setupFiles: ['./src/vitest-setup-client.ts']
-				},
-				// @xstate/svelte's "import" entry require()s a second copy of Svelte; use its ESM build.
-				resolve: {
-					alias: {
-						'@xstate/svelte': fileURLToPath(
-							new URL('./node_modules/@xstate/svelte/dist/xstate-svelte.esm.js', import.meta.url)
-						)
-					}
 				}
 			},
 			{
