@@ -1,7 +1,8 @@
 /**
  * For command-line scripts that use the app's server code. That code relies on Vite features ($lib,
- * migrations bundled with import.meta.glob), so it is loaded through Vite's SSR module loader rather
- * than imported directly. `runWithServerModules` starts the loader, runs the task, closes the loader
+ * import.meta.glob), so it is loaded through Vite's SSR module loader rather than imported directly.
+ * The loaded code reads its settings through src/lib/server/env.ts, so a script sets process.env
+ * (e.g. DATA_DIR) before loading it. `runWithServerModules` starts the loader, runs the task, closes the loader
  * and exits with the task's code (1 after an unexpected error, which is printed).
  */
 import { createServer } from 'vite';
