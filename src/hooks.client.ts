@@ -6,3 +6,5 @@
 // spares every page, the run screen included, zod's code (hooks.client.spec.ts holds it to zod).
 const holder = globalThis as { __zod_globalConfig?: { jitless?: boolean } };
 (holder.__zod_globalConfig ??= {}).jitless = true; // the same object zod reads, loaded before or after
+
+export {};
