@@ -253,7 +253,9 @@ describe('ready gate', () => {
 			code: 'untested',
 			message: expect.stringMatching(/no after-repair function test is recorded/)
 		});
-		expect((await jobs.transition(job.id, 'ready', tech.id, 'Customer declined the test')).status).toBe('ready');
+		expect((await jobs.transition(job.id, 'ready', tech.id, 'Customer declined the test')).status).toBe(
+			'ready'
+		);
 	});
 
 	it('once a test is saved, a reason on the move does not stand in for its items', async () => {
