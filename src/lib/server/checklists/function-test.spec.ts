@@ -234,6 +234,43 @@ describe('ready gate', () => {
 		expect((await jobs.get(job.id))!.status).toBe('ready');
 	});
 
+	it('a repaired job with no after-repair test at all needs a reason on the move', async () => {
+		// No run: moved by hand through the workflow, so no checklist could hold a test.
+		const bare = await jobs.create(tech.id, intake('Nomi Devices', 'Brook 3'));
+		for (const to of ['diagnosing', 'awaiting-approval', 'repairing', 'testing'] as const)
+			await jobs.transition(bare.id, to, tech.id);
+		await expect(jobs.transition(bare.id, 'ready', tech.id, '   ')).rejects.toMatchObject({
+			code: 'untested',
+			message: expect.stringMatching(/no after-repair function test is recorded.*give the reason/)
+		});
+		expect((await jobs.get(bare.id))!.status).toBe('testing');
+		const moved = await jobs.transition(bare.id, 'ready', tech.id, 'Customer took it back the same hour');
+		expect(moved.status).toBe('ready');
+
+		// A verdict but the function test never saved: the same rule, not a list of every item.
+		const job = await testingJob('Nomi Devices', 'Brook 3');
+		await expect(jobs.transition(job.id, 'ready', tech.id)).rejects.toMatchObject({
+			code: 'untested',
+			message: expect.stringMatching(/no after-repair function test is recorded/)
+		});
+		expect((await jobs.transition(job.id, 'ready', tech.id, 'Customer declined the test')).status).toBe(
+			'ready'
+		);
+	});
+
+	it('once a test is saved, a reason on the move does not stand in for its items', async () => {
+		const job = await testingJob('Nomi Devices', 'Brook 3');
+		const keys = (await checklists.forJob(job.id))!.functionTest.map((i) => i.key);
+		const partial = { ...allPass(keys), sim: { result: null, note: '' } };
+		const saved = await checklists.saveFunctionTest(job.id, partial, tech.id);
+		expect(saved).toMatchObject({ moved: null, complete: false });
+		await expect(jobs.transition(job.id, 'ready', tech.id, 'All good')).rejects.toMatchObject({
+			code: 'untested',
+			message: expect.stringMatching(/this item is not tested and has no reason: SIM detected\./)
+		});
+		expect((await jobs.get(job.id))!.status).toBe('testing');
+	});
+
 	it('a job sent back unrepaired (quote declined) is not held by a test it never had', async () => {
 		const job = await jobs.create(tech.id, intake('Nomi Devices', 'Brook 3'));
 		await jobs.transition(job.id, 'diagnosing', tech.id);

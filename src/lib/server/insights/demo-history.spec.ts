@@ -36,6 +36,23 @@ describe('demo history', () => {
 		}
 	});
 
+	it('covers every shipped flow, so Insights and flow health show runs for each', async () => {
+		const db = await getDb();
+		const shipped = await db
+			.selectDistinct({ flowId: flowVersions.flowId })
+			.from(flowVersions)
+			.where(eq(flowVersions.status, 'published'));
+		const done = await db
+			.select({ flowId: flowVersions.flowId, n: sql<number>`count(*)::int` })
+			.from(runs)
+			.innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId))
+			.where(eq(runs.status, 'completed'))
+			.groupBy(flowVersions.flowId);
+		const counts = new Map(done.map((d) => [d.flowId, d.n]));
+		expect(shipped.length).toBeGreaterThanOrEqual(18);
+		for (const { flowId } of shipped) expect(counts.get(flowId) ?? 0, flowId).toBeGreaterThan(0);
+	});
+
 	it('every path replays through the pinned flow version and ends where the run stands', async () => {
 		const db = await getDb();
 		const all = await db.select().from(runs).innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId));

@@ -16,7 +16,7 @@ import type { LiquidKind } from '$lib/domain/liquid';
 import { urgencyRank } from '$lib/domain/queue';
 import { isOpenSql, overdueSql, urgencyRankSql } from './urgency-sql';
 import type { PreRepairTest } from '$lib/domain/functionTests';
-import { gateMessage, untestedWithoutReason } from '$lib/server/checklists/gate';
+import { readyGate } from '$lib/server/checklists/gate';
 import { normaliseImei } from '$lib/domain/identifiers';
 import {
 	canTransition,
@@ -371,8 +371,8 @@ export async function transition(
 		}
 		// The ready gate (checklists/gate.ts): a repaired phone leaves tested, or with reasons.
 		if (to === 'ready' && job.status === 'testing') {
-			const missing = await untestedWithoutReason(t, job);
-			if (missing?.length) throw new JobRuleError('untested', gateMessage(missing), 'status');
+			const held = await readyGate(t, job, note);
+			if (held) throw new JobRuleError('untested', held, 'status');
 		}
 		const [updated] = await t
 			.update(jobs)

@@ -360,7 +360,13 @@ describe('ready to collect', () => {
 		await quotesQ.decide(job.id, q.id, 'approved', 'Mara Quillon');
 		await jobs.transition(job.id, 'repairing', techId);
 		await jobs.transition(job.id, 'testing', techId);
-		await jobs.transition(job.id, 'ready', techId);
+		// No run, so no after-repair test: the ready gate takes a reason instead (checklists/gate.ts).
+		await jobs.transition(
+			job.id,
+			'ready',
+			techId,
+			'Screen module swapped at the counter; tested with the customer'
+		);
 		const db = await getDb();
 		const ready = await db
 			.select()
