@@ -11,3 +11,4 @@ export * from './insights';
 export * from './quotes';
 export * from './checklists';
 export * from './symptoms';
+export * from './ratelimits';
