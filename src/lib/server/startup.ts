@@ -7,7 +7,7 @@
  * fails is logged and the server starts without it.
  */
 import { checkServerEnv } from '$lib/server/env';
-import { closeDb, getHandle } from '$lib/server/db';
+import { closeDb, getHandle, oneAtATime } from '$lib/server/db';
 import { seedDemo } from '$lib/server/demo/seed';
 import { importFromFiles } from '$lib/server/flows/queries';
 import { seedSymptoms } from '$lib/server/symptoms/queries';
@@ -31,27 +31,32 @@ export async function startup() {
 	const { kind } = await getHandle();
 	console.log(`[db] ${kind} ready and migrated in ${Math.round(performance.now() - t0)} ms`);
 
-	// 3. The demo shop, into an empty database. Whether it had run history is decided first, before
-	//    the demo's own day adds runs (step 11).
-	const demo = settings.TIDEMARK_DEMO;
-	const historyWasEmpty = demo && (await step('demo seed', () => historySize())) === 0;
-	if (demo) await step('demo seed', seedDemo);
+	// 3–7 run one process at a time: processes starting together on one PostgreSQL server seed one
+	// after the other, each seeing what the one before wrote (no-op on the embedded database).
+	const historyWasEmpty = await oneAtATime('startup', async () => {
+		// 3. The demo shop, into an empty database. Whether it had run history is decided first, before
+		//    the demo's own day adds runs (step 11).
+		const demo = settings.TIDEMARK_DEMO;
+		const empty = demo && (await step('demo seed', () => historySize())) === 0;
+		if (demo) await step('demo seed', seedDemo);
 
-	// 4. Every start: new or changed flows/*.flow.yaml become published versions.
-	await step('flow import', () => importFromFiles());
+		// 4. Every start: new or changed flows/*.flow.yaml become published versions.
+		await step('flow import', () => importFromFiles());
 
-	// 5. The symptom catalogue, after the flow import so a new flow's tags are there; rows the shop
-	//    edited are left alone.
-	await step('symptom catalogue', seedSymptoms);
+		// 5. The symptom catalogue, after the flow import so a new flow's tags are there; rows the shop
+		//    edited are left alone.
+		await step('symptom catalogue', seedSymptoms);
 
-	// 6. Reference data, not demo data: intake suggests makers and models from it in every shop.
-	await step('device models', seedDeviceModels);
+		// 6. Reference data, not demo data: intake suggests makers and models from it in every shop.
+		await step('device models', seedDeviceModels);
 
-	// 7. The demo's invented jobs, then its day (every status, runs under way), once each.
-	if (demo) {
-		await step('demo jobs', seedDemoJobs);
-		await step('demo day', seedDemoDay);
-	}
+		// 7. The demo's invented jobs, then its day (every status, runs under way), once each.
+		if (demo) {
+			await step('demo jobs', seedDemoJobs);
+			await step('demo day', seedDemoDay);
+		}
+		return empty;
+	});
 
 	// 8. Demo and tests: local mail and payment services, each only when its real setting is absent.
 	await step('local fakes', startFakes);

@@ -10,6 +10,7 @@ import pg from 'pg';
 import { env } from '$lib/server/env';
 import * as schema from './schema';
 import { lockDataDir, releaseLock } from './lock';
+import { tryExclusive, withLock } from './exclusive';
 
 export { schema };
 type Schema = typeof schema;
@@ -26,9 +27,10 @@ export type DbKind = 'pglite' | 'postgres';
 
 /** An open database, by driver, so each is migrated by drizzle's own migrator for it. */
 type Opened =
-	| { kind: 'pglite'; db: PgliteDatabase<Schema>; close: () => Promise<void> }
-	| { kind: 'postgres'; db: NodePgDatabase<Schema>; close: () => Promise<void> };
-type Handle = { db: DB; kind: DbKind; close: () => Promise<void> };
+	| { kind: 'pglite'; db: PgliteDatabase<Schema>; close: () => Promise<void>; pool: null }
+	| { kind: 'postgres'; db: NodePgDatabase<Schema>; close: () => Promise<void>; pool: pg.Pool };
+/** `pool` is the server's connection pool (null on the embedded database), for ./exclusive.ts. */
+type Handle = { db: DB; kind: DbKind; close: () => Promise<void>; pool: pg.Pool | null };
 
 export function dataDir() {
 	return env().DATA_DIR;
@@ -45,7 +47,7 @@ export function migrationsDir() {
 async function openPglite(dir: string): Promise<Opened> {
 	if (dir.startsWith('memory://')) {
 		const client = await PGlite.create();
-		return { db: drizzlePglite({ client, schema }), kind: 'pglite', close: () => client.close() };
+		return { db: drizzlePglite({ client, schema }), kind: 'pglite', close: () => client.close(), pool: null };
 	}
 	const pgdata = path.resolve(dir, 'pgdata');
 	fs.mkdirSync(path.dirname(pgdata), { recursive: true });
@@ -57,7 +59,7 @@ async function openPglite(dir: string): Promise<Opened> {
 			await client.close();
 			releaseLock(lockFile);
 		};
-		return { db: drizzlePglite({ client, schema }), kind: 'pglite', close };
+		return { db: drizzlePglite({ client, schema }), kind: 'pglite', close, pool: null };
 	} catch (e) {
 		releaseLock(lockFile);
 		throw e;
@@ -66,7 +68,7 @@ async function openPglite(dir: string): Promise<Opened> {
 
 function openPostgres(url: string): Opened {
 	const pool = new pg.Pool({ connectionString: url, max: env().DATABASE_POOL_SIZE });
-	return { db: drizzlePg({ client: pool, schema }), kind: 'postgres', close: () => pool.end() };
+	return { db: drizzlePg({ client: pool, schema }), kind: 'postgres', close: () => pool.end(), pool };
 }
 
 /** Applies drizzle/'s migrations not yet applied, with the migrator of the database's driver. */
@@ -81,7 +83,8 @@ export async function openDatabase(): Promise<Handle> {
 	const url = env().DATABASE_URL;
 	const opened = url ? openPostgres(url) : await openPglite(dataDir());
 	try {
-		await migrateDb(opened);
+		// Processes starting together on one server migrate one after the other (./exclusive.ts).
+		await withLock(opened.pool, 'migrate', () => migrateDb(opened));
 	} catch (e) {
 		await opened.close();
 		throw e;
@@ -105,4 +108,14 @@ export async function closeDb() {
 	const handle = g.__tidemarkDb;
 	g.__tidemarkDb = undefined;
 	if (handle) await (await handle).close();
+}
+
+/** Work that one process at a time may do, waiting for its turn (./exclusive.ts). */
+export async function oneAtATime<T>(name: string, fn: () => Promise<T>): Promise<T> {
+	return withLock((await getHandle()).pool, name, fn);
+}
+
+/** Work that one process at a time may do, skipped while another process does it (./exclusive.ts). */
+export async function unlessRunningElsewhere<T>(name: string, fn: () => Promise<T>) {
+	return tryExclusive((await getHandle()).pool, name, fn);
 }

@@ -7,6 +7,7 @@ import { generateHistory } from '$lib/server/insights/demo-history';
 import { warmUp } from '$lib/server/insights/queries';
 
 import type { HistoryStatus } from '$lib/insights/history';
+import { unlessRunningElsewhere } from '$lib/server/db';
 
 export type { HistoryStatus };
 
@@ -84,9 +85,11 @@ export async function startDemoHistory(runs: number | undefined) {
 		await generateHistory({ runs, seed: 6, extraTechnicians: false });
 		return;
 	}
-	// adapter-node listens as soon as startup() returns; the fill starts just after.
+	// adapter-node listens as soon as startup() returns; the fill starts just after, in one process:
+	// another sharing the PostgreSQL server skips it while the fill runs.
+	const fill = () => unlessRunningElsewhere('demo history', () => fillHistory(DEFAULT_HISTORY_RUNS));
 	const state: NonNullable<typeof running> = {
-		timer: setTimeout(() => (state.fill = fillHistory(DEFAULT_HISTORY_RUNS)), 200),
+		timer: setTimeout(() => (state.fill = fill()), 200),
 		fill: null
 	};
 	running = state;
