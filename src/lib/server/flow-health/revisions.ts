@@ -5,6 +5,8 @@
  * read never need reading again: each catch-up asks for `max(id)` (an index lookup) and reads the
  * BACK rows in the new id range, a bounded span per statement with a pause between, so a long
  * catch-up never holds PGlite's main thread for long (see docs/decisions/0001-insights-facts-in-memory.md).
+ * On a PostgreSQL server ids are drawn before commit, so a BACK may become visible after a higher id
+ * was read: the BACKs among the last `lookback` ids are read again each time (adding one twice is a no-op).
  */
 import { sql } from 'drizzle-orm';
 import type { DB } from '$lib/server/db';
@@ -71,7 +73,7 @@ export class RevisionStore {
 					)
 					select b.id, b.run_id, s.step_id
 					from w b left join w s on s.run_id = b.run_id and s.seq = (b.answer->'back'->>'revised')::int
-					where b.id > ${from} and b.kind = 'back'`)
+					where b.id > ${from - this.lookback} and b.kind = 'back'`)
 			);
 			const far = rows.filter((r) => r.step_id === null);
 			if (far.length > 0) {

@@ -60,7 +60,23 @@ function upsertFacts(where: SQL) {
  * is still in progress writes nothing.
  */
 export async function recordRunFinished(tx: DB | Tx, runId: string): Promise<void> {
-	await tx.execute(upsertFacts(sql`r.id = ${runId}`));
+	await inSeqOrder(tx, upsertFacts(sql`r.id = ${runId}`));
+}
+
+/**
+ * Readers catch up by `seq` (store.ts), so rows must become visible in `seq` order. On a server
+ * several transactions (of one process's pool or of several processes) could draw 10 and 11 and
+ * commit 11 first: a reader between the two would move past 10 for good. So the draw waits for
+ * the previous writer's commit (a transaction-scoped advisory lock, held only from the facts write
+ * to the commit: a run's last moments). On the embedded database transactions run one at a time.
+ */
+async function inSeqOrder(tx: DB | Tx, write: SQL) {
+	const run = async (t: DB | Tx) => {
+		await t.execute(sql`select pg_advisory_xact_lock(hashtextextended('tidemark:insight-facts-seq', 0))`);
+		await t.execute(write);
+	};
+	if ('rollback' in tx) await run(tx);
+	else await tx.transaction(run);
 }
 
 /** The same for many runs at once (the demo history writes its runs in batches). */
@@ -70,7 +86,7 @@ export async function recordRunsFinished(tx: DB | Tx, runIds: readonly string[])
 		runIds.map((id) => sql`${id}::uuid`),
 		sql`, `
 	);
-	await tx.execute(upsertFacts(sql`r.id in (${list})`));
+	await inSeqOrder(tx, upsertFacts(sql`r.id in (${list})`));
 }
 
 /**
@@ -129,7 +145,7 @@ export async function rebuildFacts(
 		if (ids.length === 0) break;
 		const first = ids[0].id;
 		after = ids[ids.length - 1].id;
-		await db.execute(upsertFacts(sql`r.id >= ${first} and r.id <= ${after}`));
+		await inSeqOrder(db, upsertFacts(sql`r.id >= ${first} and r.id <= ${after}`));
 		done += ids.length;
 		onProgress?.(done);
 		// Let waiting requests in between batches.

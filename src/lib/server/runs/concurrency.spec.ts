@@ -5,7 +5,10 @@ import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { closeDb, getDb, getHandle } from '$lib/server/db';
-import { runSteps } from '$lib/server/db/schema/runs';
+import { runs as runRows, runSteps } from '$lib/server/db/schema/runs';
+import type { Tx } from '$lib/server/db';
+import { recordRunFinished } from '$lib/server/insights/facts';
+import { FactStore } from '$lib/server/insights/store';
 import { imeiCheckDigit } from '$lib/domain/identifiers';
 import { makeJobIntake } from '$lib/schemas/job';
 import * as staff from '$lib/server/staff/queries';
@@ -92,5 +95,34 @@ describe.runIf(url)('step events side by side on PostgreSQL', () => {
 		expect(b).toEqual(a);
 		const db = await getDb();
 		expect(await db.select().from(runSteps).where(eq(runSteps.idempotencyKey, key))).toHaveLength(1);
+	});
+
+	it("makes finished runs' insight facts visible in their seq order, so a catch-up between two commits misses none", async () => {
+		const [first, second] = [await runAtCleanAndDry(), await runAtCleanAndDry()];
+		const db = await getDb();
+		const store = new FactStore();
+		await store.sync(db);
+		const finish = async (tx: Tx, runId: string) => {
+			await tx
+				.update(runRows)
+				.set({ status: 'abandoned', abandonReason: 'Seq order test', finishedAt: new Date() })
+				.where(eq(runRows.id, runId));
+			await recordRunFinished(tx, runId);
+		};
+		let release!: () => void;
+		const held = new Promise<void>((r) => (release = r));
+		// The first finish draws its seq and stays open; the second would draw the next one and commit.
+		const a = db.transaction(async (tx) => {
+			await finish(tx, first);
+			await held;
+		});
+		await new Promise((r) => setTimeout(r, 150));
+		const b = db.transaction((tx) => finish(tx, second));
+		await new Promise((r) => setTimeout(r, 300));
+		await store.sync(db); // a reader between the two commits
+		release();
+		await Promise.all([a, b]);
+		await store.sync(db);
+		expect([store.byRun.has(first), store.byRun.has(second)]).toEqual([true, true]);
 	});
 });
