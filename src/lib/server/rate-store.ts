@@ -43,7 +43,12 @@ export function storeFor(handle: { kind: DbKind; db: DB }, options: LimitOptions
 	if (handle.kind === 'pglite') return wrap('memory', new RateLimiterMemory(options));
 	return wrap(
 		'database',
-		new RateLimiterDrizzle({ ...options, storeClient: handle.db, schema: rateLimits, clearExpiredByTimeout: true })
+		new RateLimiterDrizzle({
+			...options,
+			storeClient: handle.db,
+			schema: rateLimits,
+			clearExpiredByTimeout: true
+		})
 	);
 }
 
