@@ -6,7 +6,7 @@
  * a process that dies releases it with its connection. The embedded database has one process (its
  * data folder is locked to it), so there the work just runs.
  */
-import type pg from 'pg';
+import pg from 'pg';
 
 /** The pool of the server database, or null on the embedded one. */
 type Pool = pg.Pool | null;
@@ -15,7 +15,10 @@ const key = (name: string) => `tidemark:${name}`;
 
 async function locked<T>(pool: Pool, name: string, wait: boolean, fn: () => Promise<T>) {
 	if (!pool) return { ran: true as const, value: await fn() };
-	const client = await pool.connect();
+	// A connection outside the pool: the work itself uses the pool, and must not wait for the
+	// connection that holds its lock (DATABASE_POOL_SIZE=1 would deadlock).
+	const client = new pg.Client(pool.options);
+	await client.connect();
 	try {
 		if (wait) await client.query('select pg_advisory_lock(hashtextextended($1, 0))', [key(name)]);
 		else {
@@ -31,7 +34,7 @@ async function locked<T>(pool: Pool, name: string, wait: boolean, fn: () => Prom
 			await client.query('select pg_advisory_unlock(hashtextextended($1, 0))', [key(name)]);
 		}
 	} finally {
-		client.release();
+		await client.end();
 	}
 }
 
