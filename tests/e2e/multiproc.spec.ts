@@ -284,6 +284,27 @@ test.describe.serial('two server processes on one PostgreSQL database', () => {
 		expectEachSentOnce(rows, (r) => r.to.startsWith('odile'));
 	});
 
+	// Last: ten failures from one address block that address on both processes for 15 minutes.
+	test('failed sign-ins counted on either process add up: ten across both block the account on both', async () => {
+		// As the page's enhanced form posts it: the answer names the action's status.
+		const attempt = (app: App, password: string) =>
+			fetch(`${app.base}/signin`, {
+				method: 'POST',
+				headers: {
+					'content-type': 'application/x-www-form-urlencoded',
+					origin: `http://localhost:${app.port}`,
+					'x-sveltekit-action': 'true'
+				},
+				body: new URLSearchParams({ email: 'senior@tidemark.test', password })
+			})
+				.then((r) => r.json())
+				.then((r: { type: string; status?: number }) => r.status ?? r.type);
+		for (let i = 0; i < 10; i++) expect(await attempt(apps[i % 2], `wrong-${i}`)).toBe(400);
+		// Five failures on each process: either alone would still let the right password in.
+		expect(await attempt(apps[0], 'multiproc-password')).toBe(429);
+		expect(await attempt(apps[1], 'multiproc-password')).toBe(429);
+	});
+
 	async function admin(q: string) {
 		const c = new pg.Client({ connectionString: adminUrl });
 		await c.connect();
