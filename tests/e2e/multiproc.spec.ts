@@ -19,6 +19,7 @@ import { startApp, startMailSink, type App, type MailSink } from './multiproc-se
 const adminUrl = process.env.TEST_DATABASE_URL;
 const WEBHOOK_SECRET = 'whsec_multiproc_test_secret';
 const RUNS = 6;
+type Mail = { id: string; to: string; status: string };
 const ROUNDS = 12;
 
 test.describe.serial('two server processes on one PostgreSQL database', () => {
@@ -326,7 +327,7 @@ test.describe.serial('two server processes on one PostgreSQL database', () => {
 			if (left.n === 0) break;
 			await new Promise((r) => setTimeout(r, 250));
 		}
-		const { rows } = await db.query<{ id: string; to: string; status: string }>(
+		const { rows } = await db.query<Mail>(
 			'select id, "to", status from outgoing_mail'
 		);
 		return rows;
@@ -336,8 +337,8 @@ test.describe.serial('two server processes on one PostgreSQL database', () => {
 	 * The mail server received each sent row's message exactly once, and nothing else; `mine` (the
 	 * rows this test queued) all went out.
 	 */
-	function expectEachSentOnce(rows: { id: string; status: string }[], mine: (r: { to: string }) => boolean) {
-		expect(rows.filter((r) => mine(r as { to: string }) && r.status !== 'sent')).toEqual([]);
+	function expectEachSentOnce(rows: Mail[], mine: (r: Mail) => boolean) {
+		expect(rows.filter((r) => mine(r) && r.status !== 'sent')).toEqual([]);
 		const received = sink.received();
 		expect(received.length - new Set(received).size, 'mails the server received twice').toBe(0);
 		expect(new Set(received)).toEqual(new Set(rows.filter((r) => r.status === 'sent').map((r) => r.id)));
