@@ -327,9 +327,7 @@ test.describe.serial('two server processes on one PostgreSQL database', () => {
 			if (left.n === 0) break;
 			await new Promise((r) => setTimeout(r, 250));
 		}
-		const { rows } = await db.query<Mail>(
-			'select id, "to", status from outgoing_mail'
-		);
+		const { rows } = await db.query<Mail>('select id, "to", status from outgoing_mail');
 		return rows;
 	}
 
