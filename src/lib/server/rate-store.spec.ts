@@ -20,6 +20,10 @@ async function status(p: Promise<unknown>) {
 }
 
 describe('rate limits on the embedded database', () => {
+	beforeAll(async () => {
+		await getHandle();
+	}, 120_000);
+
 	it('count in the process memory: a second store is a fresh count', async () => {
 		const handle = await getHandle();
 		expect(handle.kind).toBe('pglite');

@@ -1,7 +1,13 @@
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { getHandle } from './db';
 import { clearFailedSignIns, recordFailedSignIn, signInBlockedFor, signInLimits } from './ratelimit';
 
 describe('sign-in rate limit', () => {
+	// The store follows the database (memory on the embedded one): open it outside the tests' time.
+	beforeAll(async () => {
+		await getHandle();
+	}, 120_000);
+
 	it('blocks an e-mail after 10 failures within 15 minutes, for the rest of the window', async () => {
 		expect(signInLimits).toEqual({ windowMinutes: 15, maxFailures: 10 });
 		for (let i = 0; i < 9; i++) await recordFailedSignIn('a@x.test', `10.0.0.${i}`);
