@@ -7,7 +7,7 @@
  * document, `openapi/document.ts`), connections rebuilt when their configuration changes (SMTP
  * transports in `mail/worker.ts`, the payment SDK client in `payments/config.ts`), the checked
  * environment (`env.ts`, read again when a variable changes) and counters that are state, not
- * copies (sign-in limits, `ratelimit.ts`).
+ * copies (rate limits, `rate-store.ts`: in the database on a PostgreSQL server, in memory on PGlite).
  *
  * Access rule: no cache decides whether a request is allowed. The user row is read (through a
  * two-second cache that every staff write clears) on every request, and its session generation must
@@ -58,7 +58,8 @@ export const caches: readonly Cache[] = [
 		name: 'insights facts and names',
 		where: 'insights/store.ts',
 		keeps: 'a copy of insight_run_facts; the names of flows, steps, verdicts and staff',
-		fresh: 'facts: rows written since are read before every answer; names: read again after 10 s',
+		fresh:
+			'facts: rows written since are read before every answer (they commit in seq order, insights/facts.ts); names: read again after 10 s',
 		clear: forgetInsightsFacts
 	},
 	{
@@ -80,7 +81,8 @@ export const caches: readonly Cache[] = [
 		name: 'revised steps',
 		where: 'flow-health/revisions.ts',
 		keeps: 'which steps of each run were answered again',
-		fresh: 'rows written since are read before every answer',
+		fresh:
+			'rows written since are read before every answer, and the BACKs among the last 200 ids again (a server commits ids out of order)',
 		clear: resetRevisions
 	}
 ];
