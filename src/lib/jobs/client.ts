@@ -3,8 +3,7 @@
  * load function (with SvelteKit's fetch, so the server-rendered page already has the data).
  */
 import { listQueryString, type JobListQuery } from '$lib/schemas/job';
-import type { JobListResponse } from '../../routes/api/jobs/+server';
-import type { DeviceModelsResponse } from '../../routes/api/device-models/+server';
+import type { DeviceModelsResponse, JobListResponse } from './api-types';
 
 export const jobsQueryKey = (query: JobListQuery) => ['jobs', 'list', query] as const;
 

@@ -1,5 +1,5 @@
-// Test harness of the payments specs (not imported by the app): the real webhook route behind a
-// local HTTP server, the local payments fake started the way the app starts it, and the fake's
+// Test harness of the payments specs (not imported by the app): the webhook's processing (what
+// the route /api/payments/webhook answers with) behind a local HTTP server, the local payments fake started the way the app starts it, and the fake's
 // checkout page "clicked" over HTTP.
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -7,26 +7,18 @@ import { expect } from 'vitest';
 import Stripe from 'stripe';
 import { runningFakes, startFakes, stopFakes } from '$lib/server/fakes';
 import type { FakePayments } from '$lib/server/fakes/payments';
-import { POST } from '../../../routes/api/payments/webhook/+server';
+import { processWebhook } from './webhook';
 
 /** Signs test payloads the way the service does (no key is used for signing). */
 export const signer = new Stripe('sk_test_unused');
 
-/** Posts a body with a given signature header straight to the route, as an attacker could. */
+/** Hands a body with a given signature header straight to the webhook, as an attacker could. */
 export async function postWebhook(payload: string, signature: string | null) {
-	const headers: Record<string, string> = { 'content-type': 'application/json' };
-	if (signature) headers['stripe-signature'] = signature;
-	const request = new Request('http://app.test/api/payments/webhook', {
-		method: 'POST',
-		body: payload,
-		headers
-	});
-	const res = await POST({ request } as Parameters<typeof POST>[0]);
-	return { status: res.status, body: await res.json() };
+	return processWebhook(payload, signature);
 }
 
 /**
- * Starts a server that hands every request to the real webhook route, points PUBLIC_BASE_URL at
+ * Starts a server that hands every request to the webhook's processing, points PUBLIC_BASE_URL at
  * it (the fake posts its signed events there), and starts the fakes with no real keys set.
  */
 export async function startWebhookHarness(): Promise<{ fake: FakePayments; stop: () => Promise<void> }> {

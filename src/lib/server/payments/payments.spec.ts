@@ -19,7 +19,8 @@ vi.mock('$lib/server/reports/customer', async (importOriginal) => {
 
 // End to end in node: the official SDK creates sessions at the local fake (started the way the app
 // starts it), the fake's checkout page is "clicked" over HTTP, and the fake posts its signed
-// webhook to a server in this test that hands the request to the real route handler.
+// webhook to a server in this test that hands the body to the webhook's processing (the route
+// itself, a thin wrapper, has its own spec beside it).
 
 let harness: Awaited<ReturnType<typeof startWebhookHarness>>;
 let fake: FakePayments;

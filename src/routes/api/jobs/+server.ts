@@ -2,13 +2,10 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import * as catalogue from '$lib/server/symptoms/queries';
-import { badRequest, readJson, type Jsonify } from '$lib/server/jobs/http';
+import { badRequest, readJson } from '$lib/server/jobs/http';
 import { listQueryFrom, makeJobIntake } from '$lib/schemas/job';
+import type { JobCreatedResponse } from '$lib/jobs/api-types';
 import type { RequestHandler } from './$types';
-
-export type JobListResponse = Jsonify<jobs.JobList>;
-export type JobListRowJson = JobListResponse['rows'][number];
-export type JobCreatedResponse = { id: string; number: number; jobNumber: string };
 
 /** GET /api/jobs?q=&status=&technician=&sort=&dir=&page=&size= — unknown values fall back to defaults. */
 export const GET: RequestHandler = async (event) => {

@@ -1,9 +1,10 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { imeiCheckDigit } from '$lib/domain/identifiers';
 import * as staff from '$lib/server/staff/queries';
-import { GET as listJobs, POST as createJob, type JobCreatedResponse, type JobListResponse } from './+server';
+import { GET as listJobs, POST as createJob } from './+server';
+import type { DeviceModelsResponse, JobCreatedResponse, JobListResponse } from '$lib/jobs/api-types';
 import { GET as getJob, PATCH as patchJob, type JobResponse } from './[id]/+server';
-import { GET as getModels, type DeviceModelsResponse } from '../device-models/+server';
+import { GET as getModels } from '../device-models/+server';
 import { seedDeviceModels } from '$lib/server/jobs/device-models';
 
 // The handlers are called directly with a minimal RequestEvent against the in-memory PGlite.
