@@ -49,12 +49,12 @@ export const load: PageServerLoad = async (event) => {
 	const now = new Date();
 	const role = user.role;
 	// The lead runs the shop; a senior also works the bench, so they see both halves.
-	const [benchLists, reviewLists, leadLists] = await Promise.all([
+	const [benchLists, reviewLists, leadLists, reviewsForLead] = await Promise.all([
 		role === 'lead' ? null : bench(user.id, now),
 		role === 'senior' ? review(user.id, now) : null,
-		role === 'lead' ? lead(now) : null
+		role === 'lead' ? lead(now) : null,
+		role === 'lead' ? today.reviewsWaiting(user.id) : null
 	]);
-	const reviewsForLead = role === 'lead' ? await today.reviewsWaiting(user.id) : null;
 	return {
 		greeting: user.name.split(' ')[0],
 		role,

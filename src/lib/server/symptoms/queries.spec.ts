@@ -6,7 +6,7 @@ import { makeJobIntake } from '$lib/schemas/job';
 import * as library from '$lib/server/flows/queries';
 import * as jobs from '$lib/server/jobs/queries';
 import * as runs from '$lib/server/runs/queries';
-import { jobRunsSection } from '$lib/server/runs/job-section';
+import { jobRunsSection } from '../../../routes/(app)/jobs/[id]/runs-section';
 import * as staff from '$lib/server/staff/queries';
 import * as catalogue from './queries';
 import { OTHER_GROUP, SEED_GROUPS } from './seed';

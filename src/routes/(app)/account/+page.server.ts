@@ -10,11 +10,8 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	const member = await staff.findById(user.id);
-	return {
-		mustChange: member?.mustChangePassword ?? false,
-		form: await superValidate(zod4(changeOwnPassword))
-	};
+	const [member, form] = await Promise.all([staff.findById(user.id), superValidate(zod4(changeOwnPassword))]);
+	return { mustChange: member?.mustChangePassword ?? false, form };
 };
 
 export const actions: Actions = {

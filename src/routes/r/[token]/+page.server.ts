@@ -16,10 +16,13 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const link = await openLink(event);
-	await touch(link.id);
-	const r = await report.build(link.jobId, 'customer', `/r/${event.params.token}/photos`);
+	const [, r, versions] = await Promise.all([
+		touch(link.id),
+		report.build(link.jobId, 'customer', `/r/${event.params.token}/photos`),
+		quotes.listForJob(link.jobId)
+	]);
 	if (!r) return { report: null, options: [] };
-	const visible = quotes.customerVisible(await quotes.listForJob(link.jobId));
+	const visible = quotes.customerVisible(versions);
 	return {
 		report: r,
 		options: quotes.paymentOptions(visible, r.paidMinor + r.refundedMinor),

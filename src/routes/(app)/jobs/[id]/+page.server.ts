@@ -3,12 +3,12 @@ import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
-import { jobRunsSection } from '$lib/server/runs/job-section';
+import { jobRunsSection } from './runs-section';
 import * as symptomCatalogue from '$lib/server/symptoms/queries';
 import * as photos from '$lib/server/photos/queries';
 import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
-import { customerSection } from '$lib/server/reports/job-section';
-import * as quoteActions from '$lib/server/reports/job-actions';
+import { customerSection } from './customer-section';
+import * as quoteActions from './customer-actions';
 import { recordDataOutcome } from '$lib/server/jobs/data-outcome';
 import { dataOutcomeInput } from '$lib/schemas/data-outcome';
 import { dataOutcomeLabels } from '$lib/domain/data-first';
@@ -20,18 +20,23 @@ export const load: PageServerLoad = async (event) => {
 	const job = await jobs.get(event.params.id);
 	if (!job)
 		error(404, { message: 'No job with this id. It may have been typed wrong; find it in the job list.' });
+	const [staff, symptomLabels, runs, jobPhotos, customerSide, preRepairItems] = await Promise.all([
+		jobs.assignableStaff(),
+		symptomCatalogue.labels(),
+		jobRunsSection(job), // the Runs section (./JobRuns.svelte)
+		photos.listForJob(job.id), // the Photos section
+		customerSection(job.id), // the Quote and Customer sections (./QuoteSection.svelte, ./CustomerSection.svelte)
+		preRepair.itemsFor(job.maker, job.model) // the Pre-repair test section (./JobPreRepair.svelte)
+	]);
 	return {
 		job,
-		staff: await jobs.assignableStaff(),
+		staff,
 		created: event.url.searchParams.has('created'),
-		symptomLabels: Object.fromEntries(await symptomCatalogue.labels()) as Record<string, string>,
-		runs: await jobRunsSection(job), // the Runs section (src/lib/components/run/JobRuns.svelte)
-		photos: await photos.listForJob(job.id), // the Photos section
-		customerSide: await customerSection(job.id), // the Quote and Customer sections (src/lib/components/quote/)
-		preRepair: {
-			items: await preRepair.itemsFor(job.maker, job.model),
-			editable: preRepair.preRepairEditable.includes(job.status)
-		} // the Pre-repair test section (src/lib/components/functionTest/JobPreRepair.svelte)
+		symptomLabels: Object.fromEntries(symptomLabels) as Record<string, string>,
+		runs,
+		photos: jobPhotos,
+		customerSide,
+		preRepair: { items: preRepairItems, editable: preRepair.preRepairEditable.includes(job.status) }
 	};
 };
 
@@ -92,7 +97,7 @@ export const actions: Actions = {
 		}
 	},
 
-	// ── Customer side (src/lib/server/reports/job-actions.ts) ──
+	// ── Customer side (./customer-actions.ts) ──
 	quote: async (event) => {
 		const user = requireRole(event, 'technician');
 		return quoteActions.saveQuote(event, user);

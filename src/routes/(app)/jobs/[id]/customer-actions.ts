@@ -8,8 +8,8 @@ import { parseAmount, parseLines, type RawLine } from '$lib/quotes/input';
 import { formatMoney } from '$lib/domain/money';
 import * as refunds from '$lib/server/payments/refunds';
 import { PaymentsNotConfiguredError } from '$lib/server/payments/config';
-import * as links from './links';
-import { ReportRuleError, sendReport as send } from './customer';
+import * as links from '$lib/server/reports/links';
+import { ReportRuleError, sendReport as send } from '$lib/server/reports/customer';
 
 type User = { id: string };
 const texts = (form: FormData, name: string) =>

@@ -1,6 +1,6 @@
-/** What the job page's Quote and Customer sections show (src/lib/components/quote/). */
+/** What the job page's Quote and Customer sections show (./QuoteSection.svelte, ./CustomerSection.svelte). */
 import * as quotes from '$lib/server/quotes/queries';
-import * as links from './links';
+import * as links from '$lib/server/reports/links';
 import { getMoney } from '$lib/server/settings/queries';
 import * as refunds from '$lib/server/payments/refunds';
 

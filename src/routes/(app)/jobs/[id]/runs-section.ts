@@ -1,7 +1,7 @@
 import * as flowLibrary from '$lib/server/flows/queries';
 import type { RunSummary } from '$lib/runs/types';
 import * as catalogue from '$lib/server/symptoms/queries';
-import * as runs from './queries';
+import * as runs from '$lib/server/runs/queries';
 
 /** `matched`: the job's symptoms the flow is tagged with, in the catalogue's words. */
 export type FlowChoice = { id: string; title: string; version: number; matched: string[]; runs: number };
