@@ -1,8 +1,16 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { and, asc, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, isNotNull, notExists, sql } from 'drizzle-orm';
 import { getDb, type DB, type Tx } from '$lib/server/db';
-import { flows, flowVersions, runs, users, type FlowStatus, type FlowVersion } from '$lib/server/db/schema';
+import {
+	auditLog,
+	flows,
+	flowVersions,
+	runs,
+	users,
+	type FlowStatus,
+	type FlowVersion
+} from '$lib/server/db/schema';
 import { record } from '$lib/server/audit';
 import { checkFlowText } from '$lib/flows/parse';
 import { formatPath, type FlowProblem } from '$lib/flows/check';
@@ -336,10 +344,31 @@ export type AwaitingReview = {
 	submittedAt: Date | null;
 };
 
-/** Every draft submitted for review, oldest first (the longest waiting at the top); for seniors. */
-export async function awaitingReview(): Promise<AwaitingReview[]> {
+/**
+ * Drafts submitted for review, oldest first (the longest waiting at the top); for seniors. With
+ * `reviewerId`, only those that member may review: not written or edited by them (the four-eyes
+ * rule; Today and the navigation's count).
+ */
+export async function awaitingReview(reviewerId?: string, limit?: number): Promise<AwaitingReview[]> {
 	const db = await getDb();
-	return db
+	const fourEyes = reviewerId
+		? and(
+				sql`${flowVersions.authorId} is distinct from ${reviewerId}`,
+				notExists(
+					db
+						.select({ one: sql`1` })
+						.from(auditLog)
+						.where(
+							and(
+								eq(auditLog.action, 'flow.draft.save'),
+								eq(auditLog.actorId, reviewerId),
+								sql`${auditLog.details}->>'draftId' = ${flowVersions.id}::text`
+							)
+						)
+				)
+			)
+		: undefined;
+	const query = db
 		.select({
 			id: flowVersions.id,
 			flowId: flowVersions.flowId,
@@ -349,6 +378,7 @@ export async function awaitingReview(): Promise<AwaitingReview[]> {
 		})
 		.from(flowVersions)
 		.leftJoin(users, eq(users.id, flowVersions.authorId))
-		.where(eq(flowVersions.status, 'in-review'))
+		.where(and(eq(flowVersions.status, 'in-review'), fourEyes))
 		.orderBy(asc(flowVersions.submittedAt));
+	return limit ? query.limit(limit) : query;
 }

@@ -3,16 +3,17 @@
  * take; and what a senior reviews, gets back, and should know was overturned. Each function is one
  * short read (the page runs them side by side); the lead's lists are in `lead.ts`.
  */
-import { and, asc, desc, eq, gt, inArray, isNotNull, isNull, ne, notExists, sql } from 'drizzle-orm';
+import { and, desc, eq, gt, inArray, isNotNull, isNull, ne, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { getDb } from '$lib/server/db';
-import { auditLog, userSeen, users } from '$lib/server/db/schema/users';
+import { userSeen, users } from '$lib/server/db/schema/users';
 import { customers, jobs } from '$lib/server/db/schema/jobs';
 import { runs } from '$lib/server/db/schema/runs';
 import { flowVersions } from '$lib/server/db/schema/flows';
 import { quotes } from '$lib/server/db/schema/quotes';
 import { verdictConfirmations } from '$lib/server/db/schema/insights';
 import { record } from '$lib/server/audit';
+import * as flowLibrary from '$lib/server/flows/queries';
 import { byUrgency, openStatuses } from '$lib/domain/queue';
 import type { JobStatus } from '$lib/domain/jobStatus';
 import type { LiquidKind } from '$lib/domain/liquid';
@@ -140,41 +141,9 @@ export async function take(jobId: string, userId: string) {
 	});
 }
 
-const author = alias(users, 'author');
-
 /** Drafts in review that `userId` may review: not written or edited by them (the four-eyes rule). */
-export async function reviewsWaiting(userId: string) {
-	const db = await getDb();
-	return db
-		.select({
-			id: flowVersions.id,
-			flowId: flowVersions.flowId,
-			title: sql<string>`${flowVersions.definition}->>'title'`,
-			authorName: author.name,
-			submittedAt: flowVersions.submittedAt
-		})
-		.from(flowVersions)
-		.leftJoin(author, eq(author.id, flowVersions.authorId))
-		.where(
-			and(
-				eq(flowVersions.status, 'in-review'),
-				sql`${flowVersions.authorId} is distinct from ${userId}`,
-				notExists(
-					db
-						.select({ one: sql`1` })
-						.from(auditLog)
-						.where(
-							and(
-								eq(auditLog.action, 'flow.draft.save'),
-								eq(auditLog.actorId, userId),
-								sql`${auditLog.details}->>'draftId' = ${flowVersions.id}::text`
-							)
-						)
-				)
-			)
-		)
-		.orderBy(asc(flowVersions.submittedAt))
-		.limit(50);
+export function reviewsWaiting(userId: string) {
+	return flowLibrary.awaitingReview(userId, 50);
 }
 
 /** How many drafts wait for this member's review (the navigation's count). */
