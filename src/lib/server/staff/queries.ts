@@ -168,29 +168,19 @@ export async function setDisabled(actorId: string, id: string, disabled: boolean
 	);
 }
 
-export async function resetPassword(actorId: string, id: string, temporaryPassword: string) {
+/**
+ * Sets a member's password and ends their sessions: a temporary one from the lead (to change at
+ * the next sign-in), or the member's own.
+ */
+async function setPassword(
+	actorId: string,
+	id: string,
+	password: string,
+	mustChangePassword: boolean,
+	action: 'staff.reset-password' | 'staff.change-password'
+) {
 	const db = await getDb();
-	const passwordHash = await hashPassword(temporaryPassword);
-	return staffWrite(() =>
-		db.transaction(async (tx) => {
-			await lockUser(tx, id);
-			await tx
-				.update(users)
-				.set({
-					passwordHash,
-					mustChangePassword: true,
-					sessionGeneration: sql`${users.sessionGeneration} + 1`,
-					updatedAt: new Date()
-				})
-				.where(eq(users.id, id));
-			await record(tx, { actorId, action: 'staff.reset-password', targetType: 'user', targetId: id });
-		})
-	);
-}
-
-export async function changeOwnPassword(id: string, newPassword: string) {
-	const db = await getDb();
-	const passwordHash = await hashPassword(newPassword);
+	const passwordHash = await hashPassword(password);
 	await staffWrite(() =>
 		db.transaction(async (tx) => {
 			await lockUser(tx, id);
@@ -198,14 +188,22 @@ export async function changeOwnPassword(id: string, newPassword: string) {
 				.update(users)
 				.set({
 					passwordHash,
-					mustChangePassword: false,
+					mustChangePassword,
 					sessionGeneration: sql`${users.sessionGeneration} + 1`,
 					updatedAt: new Date()
 				})
 				.where(eq(users.id, id));
-			await record(tx, { actorId: id, action: 'staff.change-password', targetType: 'user', targetId: id });
+			await record(tx, { actorId, action, targetType: 'user', targetId: id });
 		})
 	);
+}
+
+export function resetPassword(actorId: string, id: string, temporaryPassword: string) {
+	return setPassword(actorId, id, temporaryPassword, true, 'staff.reset-password');
+}
+
+export function changeOwnPassword(id: string, newPassword: string) {
+	return setPassword(id, id, newPassword, false, 'staff.change-password');
 }
 
 /** Signs a member out everywhere: every session token issued before now stops working. */
