@@ -2,28 +2,11 @@ import { render, screen, waitFor, within } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it, vi } from 'vitest';
 import type { PhotoDto } from '$lib/photos/limits';
+import { photoDto } from '$lib/photos/fixtures';
 import PhotoGrid from './PhotoGrid.svelte';
 
-const photo = (id: string, over: Partial<PhotoDto> = {}): PhotoDto => ({
-	id,
-	jobId: 'j',
-	runId: null,
-	stepId: null,
-	source: 'phone',
-	caption: '',
-	mime: 'image/jpeg',
-	width: 400,
-	height: 300,
-	bytes: 250_000,
-	uploadedBy: 'u1',
-	uploadedByName: 'Mira Saltmarsh',
-	createdAt: '2026-01-05T09:30:00Z',
-	shownToCustomer: false,
-	thumbUrl: `/photos/${id}/thumb`,
-	displayUrl: `/photos/${id}/display`,
-	originalUrl: `/photos/${id}/original`,
-	...over
-});
+const photo = (id: string, over: Partial<PhotoDto> = {}) =>
+	photoDto(id, { caption: '', bytes: 250_000, uploadedBy: 'u1', ...over });
 
 const two = [
 	photo('a', { caption: 'Indicator turned pink', source: 'phone' }),

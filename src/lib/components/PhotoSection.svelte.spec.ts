@@ -2,47 +2,13 @@ import { render, screen, waitFor } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import type { PhotoDto } from '$lib/photos/limits';
+import { photoDto, stubInstantUploads } from '$lib/photos/fixtures';
 import PhotoSection from './PhotoSection.svelte';
 
-const photo = (id: string, over: Partial<PhotoDto> = {}): PhotoDto => ({
-	id,
-	jobId: 'j',
-	runId: null,
-	stepId: null,
-	source: 'phone',
-	caption: `Photo ${id}`,
-	mime: 'image/jpeg',
-	width: 400,
-	height: 300,
-	bytes: 1000,
-	uploadedBy: 'me',
-	uploadedByName: 'Mira Saltmarsh',
-	createdAt: '2026-01-05T09:30:00Z',
-	shownToCustomer: false,
-	thumbUrl: `/photos/${id}/thumb`,
-	displayUrl: `/photos/${id}/display`,
-	originalUrl: `/photos/${id}/original`,
-	...over
-});
+const photo = photoDto;
 
 /** Answers every upload at once with the next photo. */
-function stubUploads(next: PhotoDto) {
-	class InstantXhr {
-		status = 0;
-		responseText = '';
-		upload = { onprogress: null };
-		onload: (() => void) | null = null;
-		onerror: (() => void) | null = null;
-		open() {}
-		setRequestHeader() {}
-		send() {
-			this.status = 201;
-			this.responseText = JSON.stringify({ photo: next, duplicate: false });
-			queueMicrotask(() => this.onload?.());
-		}
-	}
-	vi.stubGlobal('XMLHttpRequest', InstantXhr);
-}
+const stubUploads = (next: PhotoDto) => stubInstantUploads(() => next);
 
 afterEach(() => vi.unstubAllGlobals());
 

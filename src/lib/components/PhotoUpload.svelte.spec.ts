@@ -2,6 +2,7 @@ import { render, screen, waitFor, fireEvent } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import { MAX_PHOTO_BYTES, type PhotoDto } from '$lib/photos/limits';
+import { photoDto } from '$lib/photos/fixtures';
 import PhotoUpload from './PhotoUpload.svelte';
 
 /** Stands in for the browser's XMLHttpRequest; each test answers the requests it expects. */
@@ -35,26 +36,15 @@ class FakeXhr {
 	}
 }
 
-const photo = (over: Partial<PhotoDto> = {}): PhotoDto => ({
-	id: '11111111-1111-4111-8111-111111111111',
-	jobId: 'j',
-	runId: null,
-	stepId: null,
-	source: 'phone',
-	caption: '',
-	mime: 'image/jpeg',
-	width: 400,
-	height: 300,
-	bytes: 1000,
-	uploadedBy: 'u',
-	uploadedByName: 'Mira Saltmarsh',
-	createdAt: '2026-01-05T09:30:00Z',
-	shownToCustomer: false,
-	thumbUrl: '/photos/x/thumb',
-	displayUrl: '/photos/x/display',
-	originalUrl: '/photos/x/original',
-	...over
-});
+const photo = (over: Partial<PhotoDto> = {}) =>
+	photoDto('11111111-1111-4111-8111-111111111111', {
+		caption: '',
+		uploadedBy: 'u',
+		thumbUrl: '/photos/x/thumb',
+		displayUrl: '/photos/x/display',
+		originalUrl: '/photos/x/original',
+		...over
+	});
 
 const jpeg = (name = 'board.jpg', size = 1000) =>
 	new File([new Uint8Array(size)], name, { type: 'image/jpeg' });

@@ -1,55 +1,19 @@
 import { render, screen, waitFor } from '@testing-library/svelte';
 import userEvent from '@testing-library/user-event';
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import type { PhotoDto } from '$lib/photos/limits';
+import { photoDto, stubInstantUploads } from '$lib/photos/fixtures';
 import RunStepPhotos from './RunStepPhotos.svelte';
 
-const photo = (id: string, stepId: string): PhotoDto => ({
-	id,
-	jobId: 'j',
-	runId: 'r',
-	stepId,
-	source: 'microscope',
-	caption: `Photo ${id}`,
-	mime: 'image/jpeg',
-	width: 400,
-	height: 300,
-	bytes: 1000,
-	uploadedBy: 'me',
-	uploadedByName: 'Mira Saltmarsh',
-	createdAt: '2026-01-05T09:30:00Z',
-	shownToCustomer: false,
-	thumbUrl: `/photos/${id}/thumb`,
-	displayUrl: `/photos/${id}/display`,
-	originalUrl: `/photos/${id}/original`
-});
-
-const sent: FormData[] = [];
-class InstantXhr {
-	status = 0;
-	responseText = '';
-	upload = { onprogress: null };
-	onload: (() => void) | null = null;
-	onerror: (() => void) | null = null;
-	url = '';
-	open(_m: string, url: string) {
-		this.url = url;
-	}
-	setRequestHeader() {}
-	send(body: FormData) {
-		sent.push(body);
-		this.status = 201;
-		const stored = { ...photo('new', String(body.get('stepId'))), caption: 'Taken just now' };
-		this.responseText = JSON.stringify({ photo: stored, duplicate: false });
-		queueMicrotask(() => this.onload?.());
-	}
-}
+const photo = (id: string, stepId: string) => photoDto(id, { runId: 'r', stepId, source: 'microscope' });
 
 afterEach(() => vi.unstubAllGlobals());
 
 describe('RunStepPhotos', () => {
 	it('shows only the current step’s photos and files uploads under that step', async () => {
-		vi.stubGlobal('XMLHttpRequest', InstantXhr);
+		const sent = stubInstantUploads((body) => ({
+			...photo('new', String(body.get('stepId'))),
+			caption: 'Taken just now'
+		}));
 		const user = { id: 'me', role: 'technician' as const };
 		const photos = [photo('a', 'power-on-as-received'), photo('b', 'open-and-disconnect')];
 		const { rerender } = render(RunStepPhotos, { runId: 'r', stepId: 'open-and-disconnect', photos, user });
