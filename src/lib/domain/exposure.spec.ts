@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: the exposure rules against the IP test conditions, case by case.
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import {

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one pure operation per editor action, each with its refusal message.
 /**
  * Editing operations on a flow definition for the editor. Pure and immutable: every operation
  * returns a new definition (sharing untouched steps) or a refusal with a message for the author.

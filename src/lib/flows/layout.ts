@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one algorithm, the editor graph's layout.
 /**
  * layoutFlow: positions for the editor's graph, drawn top to bottom by dagre. Nodes are steps
  * (sized by kind), edges are answers and ranges with their labels; a `next` that names no step

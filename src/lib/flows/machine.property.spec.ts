@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: the flow machine's properties, each with its generators.
 /**
  * Property test: compiled machines agree with a small reference interpreter written here from
  * the format description alone (it reads plain YAML/JSON data, not the zod types), on random

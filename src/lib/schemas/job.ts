@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one flat job shape shared by the intake form, the API and the list query.
 /**
  * Job intake and job changes. One flat shape serves the intake form (superforms) and the JSON API,
  * so the browser, the form action and POST /api/jobs refuse the same things with the same words.

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: flow data, the demo shop's invented day.
 /**
  * The demo shop's day, so every list on every role's Today shows something on the first visit: a
  * few jobs in every status (one past its promised date, one quote the customer sits on, one

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a whole local stand-in of the payment service (sessions, checkout page, refunds, webhooks).
 // A local stand-in for the few payment-service endpoints Tidemark uses, for the demo and tests:
 // checkout sessions (create, retrieve) in the service's own wire format, so the official SDK talks
 // to it unchanged (host/port/protocol options), a simple checkout page where a test payment

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: every flow-health signal against hand-computed runs.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';

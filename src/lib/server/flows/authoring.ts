@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one state machine, a flow version's life from draft to retired.
 /**
  * The life of a flow version: draft → in review → published (N+1, immutable) → retired.
  * Seniors and leads author; another senior or a lead reviews (four eyes). Every change is audited

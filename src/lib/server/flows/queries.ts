@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: every read of the flow library (import, list, versions, suggestions, reviews).
 import fs from 'node:fs';
 import path from 'node:path';
 import { and, asc, desc, eq, inArray, isNotNull, notExists, sql } from 'drizzle-orm';

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one pure aggregation per Insights panel, checked against fixtures.
 /**
  * The insights' arithmetic over facts: pure functions of (facts, filters, labels), so that each can
  * be checked against hand-computed fixtures. Intervals are Wilson 95 % (trade-reference §3),

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: flow data, a year of invented demo history walked through the flows.
 /**
  * Invented history for the demo shop, so the insights have something to show: a year of runs over
  * the published flows, walked through each flow's compiled machine with random answers (so every

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: the insights API against hand-computed fixtures.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';

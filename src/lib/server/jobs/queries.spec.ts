@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: the job queries' rules on a real database.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { eq, sql } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';

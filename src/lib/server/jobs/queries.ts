@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one table's rules (intake, list, history, status, assignment) in one transaction each.
 /**
  * Jobs: intake, the job list, one job with its history, status changes and assignment.
  * Every change runs in one transaction with its job_events row (for status) and its audit record.

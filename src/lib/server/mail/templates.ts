@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one template per e-mail, each as text and HTML.
 // The app's own e-mails, each as plain text and HTML from one set of typed data. Every value that
 // reaches the HTML goes through escapeHtml (or safeHref for links); the subject is one line.
 import { formatMoney } from '$lib/domain/money';

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: the API's OpenAPI document, one entry per route.
 /**
  * The OpenAPI 3.1 document of the bench's JSON routes, served at /api/openapi.json. Generated, not
  * written: every request body and query parameter is `z.toJSONSchema` of the very schema the route

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: every refund rule, end to end through the local payments fake.
 import crypto from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { and, eq } from 'drizzle-orm';

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one thing, a refund's life from the lead's request to the service's signed answer.
 /**
  * Refunds of paid payments. A lead asks (`requestRefund`): the refund is written as pending — it
  * counts against what is left, so two requests cannot together pass the amount paid — and created

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: every query of one table and its files (store, list, read, caption, visibility, remove).
 /**
  * Photos of a job (and of the run step they were taken at): store, list, read back, caption,
  * customer visibility, remove. Files go to the blob store by content hash; each change is audited

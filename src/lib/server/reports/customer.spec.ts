@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: the customer link, report and payment end to end.
 import crypto from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: the data-first hold through the run, the API and the job page.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: a spec: every photo route and its refusals.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
