@@ -15,6 +15,8 @@ import { seedDeviceModels } from '$lib/server/jobs/device-models';
 import { seedDemoJobs } from '$lib/server/jobs/demo';
 import { seedDemoDay } from '$lib/server/demo/day';
 import { startFakes, stopFakes } from '$lib/server/fakes';
+import { startFakeS3, stopFakeS3 } from '$lib/server/fakes/s3';
+import { startStorage } from '$lib/server/storage';
 import { warnIfNoMailServer } from '$lib/server/mail/config';
 import { warnIfNoWebhookSecret } from '$lib/server/payments/config';
 import { startBackgroundMail, stopBackgroundMail } from '$lib/server/mail/worker';
@@ -30,6 +32,11 @@ export async function startup() {
 	const t0 = performance.now();
 	const { kind } = await getHandle();
 	console.log(`[db] ${kind} ready and migrated in ${Math.round(performance.now() - t0)} ms`);
+
+	// 2b. Photo storage, before anything stores a photo: the local fake S3 server when
+	//     TIDEMARK_FAKE_S3=1 and no S3_BUCKET is set; then where photos go and whether the bucket answers.
+	await step('fake S3', startFakeS3);
+	await step('photo storage', startStorage);
 
 	// 3–7 run one process at a time: processes starting together on one PostgreSQL server seed one
 	// after the other, each seeing what the one before wrote (no-op on the embedded database).
@@ -80,6 +87,7 @@ export async function shutdown() {
 	await step('demo history', stopDemoHistory, 'shutdown');
 	await step('mail worker', stopBackgroundMail, 'shutdown');
 	await step('local fakes', stopFakes, 'shutdown');
+	await step('fake S3', stopFakeS3, 'shutdown');
 	await closeDb();
 }
 

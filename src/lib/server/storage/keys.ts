@@ -13,6 +13,8 @@ export interface BlobStore {
 	stat(key: string): Promise<{ size: number } | null>;
 	/** True when a blob was removed. */
 	delete(key: string): Promise<boolean>;
+	/** Every stored key, in no particular order (for backups and checks, not for requests). */
+	keys(): AsyncIterable<string>;
 }
 
 const keyPattern = /^[0-9a-f]{64}$/;

@@ -1,7 +1,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs/promises';
 import path from 'node:path';
-import { assertStorageKey, keyOf, type BlobStore } from './keys';
+import { assertStorageKey, isStorageKey, keyOf, type BlobStore } from './keys';
 
 const isMissing = (e: unknown) => (e as NodeJS.ErrnoException)?.code === 'ENOENT';
 
@@ -54,6 +54,21 @@ export class LocalStore implements BlobStore {
 		} catch (e) {
 			if (isMissing(e)) return null;
 			throw e;
+		}
+	}
+
+	async *keys() {
+		let entries;
+		try {
+			entries = await fs.readdir(this.root, { recursive: true, withFileTypes: true });
+		} catch (e) {
+			if (isMissing(e)) return;
+			throw e;
+		}
+		for (const e of entries) {
+			// Only files at their sharded place count (tmp/ holds unfinished writes).
+			if (e.isFile() && isStorageKey(e.name) && path.join(e.parentPath, e.name) === this.pathOf(e.name))
+				yield e.name;
 		}
 	}
 

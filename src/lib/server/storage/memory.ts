@@ -29,6 +29,10 @@ export class MemoryStore implements BlobStore {
 		return this.blobs.delete(key);
 	}
 
+	async *keys() {
+		yield* [...this.blobs.keys()];
+	}
+
 	/** How many blobs are held; for tests. */
 	get size() {
 		return this.blobs.size;
