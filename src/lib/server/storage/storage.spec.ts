@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { PutObjectCommand } from '@aws-sdk/client-s3';
 import { runFakeS3, type FakeS3 } from '$lib/server/fakes/s3';
 import { isStorageKey, keyOf, LocalStore, MemoryStore, S3Store, type BlobStore } from './index';
+import { copyBlobs } from './copy';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 // FIPS 180-2, Appendix B.1: SHA-256("abc").
@@ -159,6 +160,24 @@ describe('S3 store', () => {
 		await expect(new S3Store(wrongKey.client, store.bucket).get(abcDigest)).rejects.toThrow();
 		const closed = S3Store.from({ ...fakeS3.settings, endpoint: 'http://127.0.0.1:9', fake: true });
 		await expect(closed.get(abcDigest)).rejects.toThrow();
+	});
+});
+
+describe('moving photos from the local folder to S3', () => {
+	it('copies every blob once, can run again, and the target then holds the same bytes', async () => {
+		const local = new LocalStore(fs.mkdtempSync(path.join(tmpRoot, 'move-')));
+		const blobs = ['thumb', 'display', 'original', 'another'].map((s) => enc(`${s} bytes`));
+		for (const b of blobs) await local.put(b);
+		const s3 = await freshS3Store();
+		await s3.put(blobs[3]); // already there from an interrupted run
+		expect(await copyBlobs(local, s3)).toEqual({
+			copied: 3,
+			present: 1,
+			bytes: blobs.slice(0, 3).reduce((n, b) => n + b.byteLength, 0)
+		});
+		expect(await allKeys(s3)).toEqual(await allKeys(local));
+		for (const b of blobs) expect(await s3.get(keyOf(b))).toEqual(b);
+		expect(await copyBlobs(local, s3)).toMatchObject({ copied: 0, present: 4 });
 	});
 });
 
