@@ -83,11 +83,11 @@ describe.runIf(url)('copying the embedded database to a PostgreSQL server', () =
 				consentToOpen: true
 			})
 		);
-		const run = await runs.start(job.id, FLOW, { ...tech, role: 'senior' });
+		const run = await runs.start(job.id, FLOW, tech);
 		await recordEvent(
 			run.id,
 			{ type: 'ANSWER', stepId: 'power-on-as-received', outcome: 0, idempotencyKey: randomUUID() },
-			{ ...tech, role: 'senior' }
+			tech
 		);
 		await photos.add(tech.id, await photos.runTarget(run.id, 'power-on-as-received'), {
 			bytes: await png(32, 24),

@@ -1,9 +1,10 @@
 import { afterEach, describe, expect, it } from 'vitest';
-import { getStore, MemoryStore, S3Store } from '$lib/server/storage';
+import { getStore, MemoryStore, S3Store, startStorage } from '$lib/server/storage';
 import { s3Settings } from '$lib/server/storage/config';
 import { fakeS3Wanted, startFakeS3, stopFakeS3 } from './s3';
 
-const saved = { TIDEMARK_FAKE_S3: process.env.TIDEMARK_FAKE_S3, S3_BUCKET: process.env.S3_BUCKET };
+const names = ['TIDEMARK_FAKE_S3', 'S3_BUCKET', 'S3_ENDPOINT', 'S3_ACCESS_KEY_ID', 'S3_SECRET_ACCESS_KEY'];
+const saved = Object.fromEntries(names.map((k) => [k, process.env[k]]));
 afterEach(async () => {
 	await stopFakeS3();
 	for (const [k, v] of Object.entries(saved)) {
@@ -32,6 +33,15 @@ describe('the local fake S3 server', () => {
 		expect(store).toBeInstanceOf(S3Store);
 		const { key } = await store.put(new TextEncoder().encode('a photo through the fake'));
 		expect(new TextDecoder().decode((await store.get(key))!)).toBe('a photo through the fake');
+
+		// The start-up check passes for the fake's bucket and fails loudly for a bucket that is not there.
+		await expect(startStorage()).resolves.toBeUndefined();
+		process.env.S3_BUCKET = 'no-such-bucket';
+		process.env.S3_ENDPOINT = fake.settings.endpoint;
+		process.env.S3_ACCESS_KEY_ID = 'S3RVER';
+		process.env.S3_SECRET_ACCESS_KEY = 'S3RVER';
+		await expect(startStorage()).rejects.toThrow();
+		for (const k of names.slice(1)) delete process.env[k];
 
 		await stopFakeS3();
 		expect(s3Settings()).toBeNull();

@@ -35,12 +35,12 @@ export function getStore(): BlobStore {
  */
 export async function startStorage() {
 	const store = getStore();
-	const where =
-		store instanceof LocalStore
+	const s3 = s3Settings();
+	const where = s3
+		? describeStorage(s3)
+		: store instanceof LocalStore
 			? `local folder ${store.root}`
-			: store instanceof MemoryStore
-				? 'memory (nothing kept)'
-				: describeStorage(s3Settings());
+			: 'memory (nothing kept)';
 	console.log(`[photos] stored in the ${where}`);
 	if (store instanceof S3Store) await store.check();
 }
