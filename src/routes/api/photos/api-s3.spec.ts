@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { eq } from 'drizzle-orm';
+import { asc, eq } from 'drizzle-orm';
 import { DeleteObjectCommand, ListObjectsV2Command } from '@aws-sdk/client-s3';
 import { getDb } from '$lib/server/db';
 import { attachments } from '$lib/server/db/schema/attachments';
@@ -161,5 +161,29 @@ describe('photos in the object store', () => {
 		);
 		expect(status).toBe(404);
 		expect((await serve(photo.id, 'original')).status).toBe(200);
+	});
+
+	it('fails (500), never answers "no such photo", when the store cannot be reached', async () => {
+		// The suite's first photo: kept to the end, all three files in place.
+		const [row] = await (
+			await getDb()
+		)
+			.select()
+			.from(attachments)
+			.orderBy(asc(attachments.createdAt))
+			.limit(1);
+		const endpoint = process.env.S3_ENDPOINT;
+		process.env.S3_ENDPOINT = 'http://127.0.0.1:9'; // nothing listens on the discard port
+		try {
+			const outcome = await Promise.resolve(serve(row.id, 'thumb')).then(
+				(r) => ({ status: r.status }),
+				(e: { status?: number }) => ({ status: e.status, thrown: true })
+			);
+			// Not an HttpError: SvelteKit turns it into a 500 and logs it.
+			expect(outcome).toEqual({ status: undefined, thrown: true });
+		} finally {
+			process.env.S3_ENDPOINT = endpoint;
+		}
+		expect((await serve(row.id, 'thumb')).status).toBe(200);
 	});
 });
