@@ -15,6 +15,10 @@ const flag = z
 	.default('0')
 	.transform((v) => v === '1');
 const httpUrl = z.url({ protocol: /^https?$/, error: 'expected an http:// or https:// address' });
+const bucketName = z.string().regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, {
+	error: 'expected a bucket name (3–63 of a–z, 0–9, dot, hyphen)'
+});
+const trueFalse = z.enum(['0', '1', 'true', 'false'], { error: 'expected true or false (1 or 0)' });
 const wholeNumber = (min: number, max: number) =>
 	z.coerce
 		.number({ error: `expected a whole number from ${min} to ${max}` })
@@ -41,7 +45,16 @@ export const envSchema = z.object({
 	TIDEMARK_DEMO_HISTORY: wholeNumber(0, 1_000_000).optional(),
 	DEMO_PASSWORD: z.string().default('tidemark-demo'),
 	TIDEMARK_FAKES: flag,
+	TIDEMARK_FAKE_S3: flag,
 	TIDEMARK_DIAGNOSTICS: flag,
+
+	// Photo storage: an S3-compatible bucket instead of DATA_DIR/uploads (pairs checked in storage/config.ts)
+	S3_BUCKET: bucketName.optional(),
+	S3_ENDPOINT: httpUrl.optional(),
+	S3_REGION: z.string().default('us-east-1'),
+	S3_ACCESS_KEY_ID: z.string().optional(),
+	S3_SECRET_ACCESS_KEY: z.string().optional(),
+	S3_FORCE_PATH_STYLE: trueFalse.optional(),
 
 	// Flows
 	FLOWS_DIR: z.string().default('flows'),

@@ -16,7 +16,7 @@ import { seedDemoJobs } from '$lib/server/jobs/demo';
 import { seedDemoDay } from '$lib/server/demo/day';
 import { startFakes, stopFakes } from '$lib/server/fakes';
 import { startFakeS3, stopFakeS3 } from '$lib/server/fakes/s3';
-import { startStorage } from '$lib/server/storage';
+import { s3Settings, startStorage } from '$lib/server/storage';
 import { warnIfNoMailServer } from '$lib/server/mail/config';
 import { warnIfNoWebhookSecret } from '$lib/server/payments/config';
 import { startBackgroundMail, stopBackgroundMail } from '$lib/server/mail/worker';
@@ -27,6 +27,7 @@ import { warmUp as warmUpInsights } from '$lib/server/insights/queries';
 export async function startup() {
 	// 1. The environment: a bad or missing variable stops here, named (EnvError).
 	const settings = checkServerEnv();
+	s3Settings(); // photo-storage settings that only work together (a key without its secret) stop here too
 
 	// 2. The database, opened and migrated (DataDirInUseError when another process holds DATA_DIR).
 	const t0 = performance.now();

@@ -5,6 +5,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { dataDir } from '$lib/server/db';
+import { env, readEnv } from '$lib/server/env';
 import { setFakeS3, type S3Settings } from '$lib/server/storage/config';
 
 export type FakeS3 = {
@@ -65,8 +66,9 @@ export async function runFakeS3(opts: { dir: string; bucket?: string }): Promise
 const g = globalThis as unknown as { __tidemarkFakeS3Server?: FakeS3 };
 
 /** Whether the app should start the fake: asked for, and no real object store configured. */
-export function fakeS3Wanted(env: NodeJS.ProcessEnv = process.env): boolean {
-	return env.TIDEMARK_FAKE_S3 === '1' && !env.S3_BUCKET?.trim();
+export function fakeS3Wanted(source?: Record<string, string | undefined>): boolean {
+	const e = source ? readEnv(source) : env();
+	return e.TIDEMARK_FAKE_S3 && !e.S3_BUCKET;
 }
 
 /**

@@ -1,7 +1,8 @@
 // Where photos go: an S3-compatible object store when S3_BUCKET is set; otherwise the local fake
 // S3 server once the app has started it (TIDEMARK_FAKE_S3=1, see fakes/s3.ts); otherwise the
-// local folder DATA_DIR/uploads (in memory under DATA_DIR=memory://, the tests).
-import { z } from 'zod';
+// local folder DATA_DIR/uploads (in memory under DATA_DIR=memory://, the tests). Each variable is
+// checked in env.ts; the settings that only make sense together are checked here.
+import { EnvError, env, readEnv, type Env } from '$lib/server/env';
 
 export type S3Settings = {
 	bucket: string;
@@ -14,61 +15,52 @@ export type S3Settings = {
 	fake: boolean;
 };
 
-const flag = z
-	.enum(['1', '0', 'true', 'false', 'yes', 'no', ''], {
-		error: 'must be true or false (1/0, yes/no)'
-	})
-	.transform((v) => v === '1' || v === 'true' || v === 'yes');
-
-const blankToUndefined = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
-
-const s3Env = z
-	.object({
-		S3_BUCKET: z
-			.string()
-			.trim()
-			.regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, 'must be a bucket name (3–63 of a–z, 0–9, dot, hyphen)'),
-		S3_ENDPOINT: z.preprocess(blankToUndefined, z.url({ protocol: /^https?$/ }).optional()),
-		S3_REGION: z.preprocess(blankToUndefined, z.string().trim().default('us-east-1')),
-		S3_ACCESS_KEY_ID: z.preprocess(blankToUndefined, z.string().trim().optional()),
-		S3_SECRET_ACCESS_KEY: z.preprocess(blankToUndefined, z.string().optional()),
-		S3_FORCE_PATH_STYLE: z.preprocess(blankToUndefined, flag.optional())
-	})
-	.refine((e) => Boolean(e.S3_ACCESS_KEY_ID) === Boolean(e.S3_SECRET_ACCESS_KEY), {
-		message: 'set both S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY, or neither',
-		path: ['S3_SECRET_ACCESS_KEY']
-	});
-
-export class StorageConfigError extends Error {}
+/** A photo-storage setting the server cannot use; an EnvError, so start-up stops naming it. */
+export class StorageConfigError extends EnvError {}
 
 const g = globalThis as unknown as { __tidemarkFakeS3?: S3Settings | null };
 
-/** The object store's settings, or null for the local folder. Throws on a half or malformed setting. */
-export function s3Settings(env: NodeJS.ProcessEnv = process.env): S3Settings | null {
-	if (!env.S3_BUCKET?.trim()) {
-		const stray = Object.keys(env).filter((k) => k.startsWith('S3_') && env[k]?.trim());
+/**
+ * The object store's settings, or null for the local folder. Throws on a half setting. `source`
+ * is for tests; the server reads its checked environment.
+ */
+export function s3Settings(source?: Record<string, string | undefined>): S3Settings | null {
+	const e: Env = source ? readEnv(source) : env();
+	if (!e.S3_BUCKET) {
+		const stray = (
+			['S3_ENDPOINT', 'S3_ACCESS_KEY_ID', 'S3_SECRET_ACCESS_KEY', 'S3_FORCE_PATH_STYLE'] as const
+		).filter((k) => e[k] !== undefined);
 		if (stray.length) {
 			throw new StorageConfigError(
-				`${stray.join(', ')} ${stray.length > 1 ? 'are' : 'is'} set but S3_BUCKET is not: set S3_BUCKET to store photos in the object store, or unset the rest to keep them in DATA_DIR/uploads.`
+				stray.map((name) => ({
+					name,
+					message:
+						'set but S3_BUCKET is not: set S3_BUCKET to keep photos in the object store, or unset the S3_ settings to keep them in DATA_DIR/uploads'
+				}))
 			);
 		}
 		return g.__tidemarkFakeS3 ?? null;
 	}
-	const parsed = s3Env.safeParse(env);
-	if (!parsed.success) {
-		const issue = parsed.error.issues[0];
-		throw new StorageConfigError(`Photo storage: ${String(issue.path[0] ?? 'S3')} ${issue.message}.`);
+	if (Boolean(e.S3_ACCESS_KEY_ID) !== Boolean(e.S3_SECRET_ACCESS_KEY)) {
+		throw new StorageConfigError([
+			{
+				name: e.S3_ACCESS_KEY_ID ? 'S3_SECRET_ACCESS_KEY' : 'S3_ACCESS_KEY_ID',
+				message: 'set both S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY, or neither'
+			}
+		]);
 	}
-	const e = parsed.data;
+	const pathStyle = e.S3_FORCE_PATH_STYLE;
 	return {
 		bucket: e.S3_BUCKET,
 		endpoint: e.S3_ENDPOINT,
 		region: e.S3_REGION,
-		credentials: e.S3_ACCESS_KEY_ID
-			? { accessKeyId: e.S3_ACCESS_KEY_ID, secretAccessKey: e.S3_SECRET_ACCESS_KEY! }
-			: undefined,
+		credentials:
+			e.S3_ACCESS_KEY_ID && e.S3_SECRET_ACCESS_KEY
+				? { accessKeyId: e.S3_ACCESS_KEY_ID, secretAccessKey: e.S3_SECRET_ACCESS_KEY }
+				: undefined,
 		// A custom endpoint is usually a self-hosted store, which seldom has per-bucket host names.
-		forcePathStyle: e.S3_FORCE_PATH_STYLE ?? Boolean(e.S3_ENDPOINT),
+		forcePathStyle:
+			pathStyle === undefined ? Boolean(e.S3_ENDPOINT) : pathStyle === '1' || pathStyle === 'true',
 		fake: false
 	};
 }
