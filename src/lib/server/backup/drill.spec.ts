@@ -47,7 +47,7 @@ async function contents(client: PGlite) {
 	return out;
 }
 
-const live = async () => (await getDb()).$client as unknown as PGlite;
+const live = async () => ((await getDb()) as unknown as { $client: PGlite }).$client;
 const sha = (b: Uint8Array) => crypto.createHash('sha256').update(b).digest('hex');
 
 beforeAll(async () => {
