@@ -53,7 +53,7 @@ async function copyPglite(client: PGlite, dest: string): Promise<DbFacts> {
 	const copy = await PGlite.create({ loadDataDir: dump });
 	try {
 		const [{ v }] = (await copy.query<{ v: string }>(`select current_setting('server_version') as v`)).rows;
-		return await factsOf(pgliteQuery(copy), `PGlite dumpDataDir (PostgreSQL ${v})`);
+		return await factsOf(pgliteQuery(copy), `PGlite (PostgreSQL ${v})`);
 	} finally {
 		await copy.close();
 	}
