@@ -93,7 +93,7 @@ afterAll(async () => {
 	await fs.rm(tmp, { recursive: true, force: true });
 });
 
-describe('restore drill', () => {
+describe('restore drill', { timeout: 120_000 }, () => {
 	it('backs up the running database and every photo with a manifest', async () => {
 		const result = await writeBackup({
 			source: { kind: 'pglite', client: await live() },

@@ -40,9 +40,14 @@ export async function dbSource(): Promise<DbSource> {
 
 /** Deletes all but the newest `keep` backup files the app named; other files in the folder are left alone. */
 export async function prune(dir: string, keep: number) {
+	// By time, then by the -2, -3 … a second backup within the same second gets.
+	const order = (n: string) => {
+		const [, stamp, extra] = /(\d{8}T\d{6}Z)(?:-(\d+))?/.exec(n)!;
+		return `${stamp}.${(extra ?? '1').padStart(6, '0')}`;
+	};
 	const names = (await fs.readdir(dir).catch(() => [] as string[]))
 		.filter((n) => backupNamePattern.test(n))
-		.sort();
+		.sort((a, b) => order(a).localeCompare(order(b)));
 	const gone = names.slice(0, Math.max(0, names.length - keep));
 	for (const n of gone) await fs.rm(path.join(dir, n), { force: true });
 	return gone;
