@@ -47,7 +47,7 @@ export function summary(m: Manifest, file: string, bytes: number) {
 	return [
 		`Wrote ${file} (${(bytes / 1e6).toFixed(2)} MB).`,
 		`Database: ${methods[m.database.method].says} — ${m.database.tool}.`,
-		`Migration level ${m.migrations.applied} (${m.migrations.latestTag ?? 'unknown'}); ${rows} rows in ${Object.keys(m.counts).length} tables; ${m.photos.count} photo files (${m.photos.source}).`,
+		`Migration level ${m.migrations.applied} (${m.migrations.latestTag ?? (m.migrations.applied ? 'unknown' : 'none')}); ${rows} rows in ${Object.keys(m.counts).length} tables; ${m.photos.count} photo files (${m.photos.source}).`,
 		...(m.photos.missing.length
 			? [`Warning: ${m.photos.missing.length} photo files named by the database were not in the store.`]
 			: [])
@@ -197,7 +197,7 @@ export async function restoreCommand(
 	const m = r.manifest;
 	const rows = Object.values(m.counts).reduce((a, b) => a + b, 0);
 	say(
-		`Checked the manifest and ${m.members.length} checksums; the backup is from ${m.createdAt} (Tidemark ${m.appVersion}, migration level ${m.migrations.applied}).`
+		`Checked the manifest and ${m.members.length} checksum${m.members.length === 1 ? '' : 's'}; the backup is from ${m.createdAt} (Tidemark ${m.appVersion}, migration level ${m.migrations.applied}).`
 	);
 	say(
 		`Restored ${rows} rows in ${Object.keys(m.counts).length} tables (${methods[m.database.method].says}) and ${r.photos} photo files in ${(r.ms / 1000).toFixed(1)} s; every table's row count matches the manifest.`
