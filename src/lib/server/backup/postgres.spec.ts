@@ -85,7 +85,7 @@ describe.runIf(url)(title, { timeout: 120_000 }, () => {
 			password: 'tech-password-1'
 		});
 		const job = await jobs.create(tech.id, intake(7));
-		const run = await runs.start(job.id, FLOW, { ...tech, role: 'technician' });
+		const run = await runs.start(job.id, FLOW, tech);
 		await recordEvent(
 			run.id,
 			{
@@ -94,7 +94,7 @@ describe.runIf(url)(title, { timeout: 120_000 }, () => {
 				outcome: 'Boots to the lock screen and stays up',
 				idempotencyKey: 'pg-lane-0001'
 			},
-			{ ...tech, role: 'technician' }
+			tech
 		);
 		await photos.add(tech.id, { jobId: job.id }, { bytes: await png(), source: 'phone', caption: 'Board' });
 	}, 120_000);

@@ -68,7 +68,6 @@ export const access: Record<string, Access> = {
 	'/(app)/outbox/[id] action retry': 'lead',
 	'/(app)/settings load': 'lead',
 	'/(app)/settings action default': 'lead',
-	'/(app)/settings action backup': 'lead',
 	'/(app)/staff load': 'lead',
 	'/(app)/staff action create': 'lead',
 	'/(app)/staff action role': 'lead',

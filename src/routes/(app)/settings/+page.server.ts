@@ -7,8 +7,6 @@ import { getDb } from '$lib/server/db';
 import * as settings from '$lib/server/settings/queries';
 import { basisPointsToPercent, percentToBasisPoints, shopSettingsForm } from '$lib/schemas/settings';
 import * as backups from '$lib/server/backup/queries';
-import { backupNow, BackupBusy } from '$lib/server/backup/service';
-import { BackupRefused } from '$lib/server/backup/archive';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -71,26 +69,5 @@ export const actions: Actions = {
 			}
 		});
 		return message(form, 'Settings saved. New quotes use them; quotes already saved keep their own.');
-	},
-	/** A backup now, into DATA_DIR/backups, like the scheduled ones. */
-	backup: async (event) => {
-		requireRole(event, 'lead');
-		try {
-			const r = await backupNow('lead');
-			return {
-				backup: {
-					ok: true,
-					message: `Backup written: ${r.file.split('/').pop()} (${(r.bytes / 1e6).toFixed(1)} MB).`
-				}
-			};
-		} catch (e) {
-			const known = e instanceof BackupRefused || e instanceof BackupBusy;
-			return fail(known ? 409 : 500, {
-				backup: {
-					ok: false,
-					message: known ? (e as Error).message : `The backup failed: ${(e as Error).message}`
-				}
-			});
-		}
 	}
 };
