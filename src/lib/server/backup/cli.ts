@@ -61,7 +61,7 @@ async function viaApp(
 	url: string | undefined
 ): Promise<number> {
 	const token = backupConfig().BACKUP_TOKEN;
-	const base = (url || process.env.TIDEMARK_URL || publicBaseUrl()).replace(/\/+$/, '');
+	const base = (url || backupConfig().TIDEMARK_URL || publicBaseUrl()).replace(/\/+$/, '');
 	if (!token) {
 		say(
 			`The app has the data folder open (pid ${pid}), so the backup must be written by it. Give the app and this command the same BACKUP_TOKEN (24+ characters) and run this again — or let the app's daily backups (DATA_DIR/backups) do it, or stop the app first.`

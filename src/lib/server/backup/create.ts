@@ -15,6 +15,7 @@ import { PGlite } from '@electric-sql/pglite';
 import pg from 'pg';
 import { keyOf, type BlobStore } from '$lib/server/storage/keys';
 import { describeMembers, filesUnder, pack } from './archive';
+import { backupConfig } from './config';
 import { migrationLevel, photoKeys, rowCounts, type Query } from './facts';
 import { appVersion, FORMAT, MANIFEST, methods, type Manifest, type Method } from './manifest';
 
@@ -60,7 +61,7 @@ async function copyPglite(client: PGlite, dest: string): Promise<DbFacts> {
 }
 
 export function pgDumpBinary() {
-	return process.env.PG_DUMP?.trim() || 'pg_dump';
+	return backupConfig().PG_DUMP;
 }
 
 function run(cmd: string, args: string[], env: NodeJS.ProcessEnv): Promise<string> {

@@ -3,9 +3,24 @@
  * migration level it was taken at, how the database was copied, the row count of every table, and
  * the size and SHA-256 of every other member. Restore checks all of it before touching anything.
  */
+import fs from 'node:fs';
+import path from 'node:path';
+import { readMigrationFiles, type MigrationMeta } from 'drizzle-orm/migrator';
 import { z } from 'zod';
-import { migrations, migrationTags } from '$lib/server/db/migrations';
+import { migrationsDir } from '$lib/server/db';
 import pkg from '../../../../package.json';
+
+/** drizzle/'s migrations as drizzle's migrator reads them (same hashes), with their journal tags. */
+function codeMigrations(): { migrations: MigrationMeta[]; tags: string[] } {
+	const folder = migrationsDir();
+	const journal = JSON.parse(fs.readFileSync(path.join(folder, 'meta', '_journal.json'), 'utf8')) as {
+		entries: { tag: string }[];
+	};
+	return {
+		migrations: readMigrationFiles({ migrationsFolder: folder }),
+		tags: journal.entries.map((e) => e.tag)
+	};
+}
 
 export const appVersion: string = pkg.version;
 export const MANIFEST = 'manifest.json';
@@ -62,6 +77,7 @@ export type Manifest = z.infer<typeof manifestSchema>;
 
 /** The migration level of this code: everything in drizzle/. */
 export function codeMigrationLevel(): MigrationLevel {
+	const { migrations, tags: migrationTags } = codeMigrations();
 	const last = migrations.at(-1);
 	return {
 		applied: migrations.length,
@@ -74,6 +90,7 @@ export function codeMigrationLevel(): MigrationLevel {
 /** Why this code cannot restore a backup at `level`, or null when it can (older levels migrate at start). */
 export function newerThanCode(level: MigrationLevel): string | null {
 	const code = codeMigrationLevel();
+	const { migrations } = codeMigrations();
 	const known = level.latestHash === null || migrations.some((m) => m.hash === level.latestHash);
 	if (level.latestMillis > code.latestMillis || level.applied > code.applied || !known) {
 		return (
@@ -87,6 +104,7 @@ export function newerThanCode(level: MigrationLevel): string | null {
 
 export function tagOfHash(hash: string | null): string | null {
 	if (!hash) return null;
+	const { migrations, tags: migrationTags } = codeMigrations();
 	const i = migrations.findIndex((m) => m.hash === hash);
 	return i < 0 ? null : (migrationTags[i] ?? null);
 }

@@ -13,6 +13,7 @@ import { lockDataDir, releaseLock } from '$lib/server/db/lock';
 import { LocalStore } from '$lib/server/storage/local';
 import type { BlobStore } from '$lib/server/storage/keys';
 import { BackupRefused, unpackAndVerify } from './archive';
+import { backupConfig } from './config';
 import { pgArgs } from './create';
 import { rowCounts, type Query } from './facts';
 import { methods, newerThanCode, type Manifest } from './manifest';
@@ -68,7 +69,7 @@ function sameCounts(expected: Record<string, number>, got: Record<string, number
 
 function pgRestore(file: string, url: string): Promise<void> {
 	const { dbname, env } = pgArgs(url);
-	const bin = process.env.PG_RESTORE?.trim() || 'pg_restore';
+	const bin = backupConfig().PG_RESTORE;
 	const args = [
 		'--no-owner',
 		'--no-privileges',

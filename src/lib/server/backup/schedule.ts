@@ -5,8 +5,8 @@
  * On PostgreSQL several processes may run the timer; a session advisory lock lets one of them back
  * up at a time, and each re-reads the newest attempt once it holds the lock.
  */
-import pg from 'pg';
-import { dataDir, getHandle } from '$lib/server/db';
+import { dataDir, unlessRunningElsewhere } from '$lib/server/db';
+import { env } from '$lib/server/env';
 import * as settings from '$lib/server/settings/queries';
 import { backupConfig } from './config';
 import { lastSuccess, recent } from './queries';
@@ -15,8 +15,6 @@ import { backupNow } from './service';
 const CHECK_MS = 15 * 60_000;
 const FIRST_CHECK_MS = 60_000;
 const RETRY_AFTER_FAILURE_MS = 3_600_000;
-/** pg_try_advisory_lock key: any fixed number the app uses for nothing else. */
-const LOCK_KEY = 7_316_001;
 
 export async function due(now: Date): Promise<boolean> {
 	const { everyHours } = await settings.getBackups();
@@ -28,28 +26,13 @@ export async function due(now: Date): Promise<boolean> {
 	return true;
 }
 
-async function withScheduleLock<T>(fn: () => Promise<T>): Promise<T | null> {
-	const { kind } = await getHandle();
-	if (kind === 'pglite') return fn(); // one process holds the folder (db/lock.ts)
-	const client = new pg.Client({ connectionString: process.env.DATABASE_URL });
-	await client.connect();
-	try {
-		const { rows } = await client.query('select pg_try_advisory_lock($1) as ok', [LOCK_KEY]);
-		if (!rows[0].ok) return null;
-		try {
-			return await fn();
-		} finally {
-			await client.query('select pg_advisory_unlock($1)', [LOCK_KEY]);
-		}
-	} finally {
-		await client.end();
-	}
-}
-
 /** One check: a backup when one is due (and this process wins the lock), else null. */
 export async function tick(now = new Date()) {
 	if (!(await due(now))) return null;
-	return withScheduleLock(async () => ((await due(new Date())) ? backupNow('schedule') : null));
+	const r = await unlessRunningElsewhere('backups', async () =>
+		(await due(new Date())) ? backupNow('schedule') : null
+	);
+	return r.ran ? r.value : null;
 }
 
 // One-process state: this process's timers (each process on PostgreSQL has its own; the lock above
@@ -66,7 +49,7 @@ async function check() {
 }
 
 export function startBackups() {
-	if (dataDir().startsWith('memory://') && !process.env.DATABASE_URL) return false;
+	if (dataDir().startsWith('memory://') && !env().DATABASE_URL) return false;
 	if (backupConfig().BACKUP_SCHEDULE === 'off') {
 		console.log('[backup] BACKUP_SCHEDULE=off: no scheduled backups (npm run backup still works).');
 		return false;

@@ -7,6 +7,7 @@ import fs from 'node:fs/promises';
 import path from 'node:path';
 import type { PGlite } from '@electric-sql/pglite';
 import { dataDir, getHandle } from '$lib/server/db';
+import { env } from '$lib/server/env';
 import { getStore, LocalStore, type BlobStore } from '$lib/server/storage';
 import * as settings from '$lib/server/settings/queries';
 import { BackupRefused } from './archive';
@@ -34,7 +35,7 @@ export function describeStore(store: BlobStore) {
 
 export async function dbSource(): Promise<DbSource> {
 	const handle = await getHandle();
-	if (handle.kind === 'postgres') return { kind: 'postgres', url: process.env.DATABASE_URL! };
+	if (handle.kind === 'postgres') return { kind: 'postgres', url: env().DATABASE_URL! };
 	return { kind: 'pglite', client: (handle.db as unknown as { $client: PGlite }).$client };
 }
 
