@@ -46,7 +46,8 @@ export default defineConfig({
 			DEMO_PASSWORD: 'e2e-demo-password',
 			BODY_SIZE_LIMIT: '20M', // as under `npm start`: room for a 15 MB photo upload (src/lib/photos/limits.ts)
 			// A small invented run history for tests/e2e/insights.spec.ts (src/lib/server/startup-tasks.ts).
-			TIDEMARK_DEMO_HISTORY: '300'
+			TIDEMARK_DEMO_HISTORY: '300',
+			BACKUP_SCHEDULE: 'off' // no scheduled backup in the middle of a journey
 		}
 	}
 });

@@ -35,6 +35,7 @@ export async function startServer({ port, dataDir, build = 'build', env = {} }) 
 			ORIGIN: `http://localhost:${port}`,
 			DATA_DIR: dataDir,
 			AUTH_SECRET: 'bench-secret-bench-secret-bench-secret-0123',
+			BACKUP_SCHEDULE: 'off', // a scheduled backup mid-measurement would skew the figures
 			...env
 		},
 		stdio: ['ignore', 'ignore', 'inherit']

@@ -33,7 +33,17 @@ export const shopSettingsForm = z.object({
 		.number({ error: 'Enter a number of hours.' })
 		.int('Whole hours.')
 		.min(1, 'At least one hour.')
-		.max(720, 'At most 720 hours (30 days).')
+		.max(720, 'At most 720 hours (30 days).'),
+	backupEveryHours: z
+		.number({ error: 'Enter a number of hours.' })
+		.int('Whole hours.')
+		.min(1, 'At least every hour.')
+		.max(168, 'At least once a week (168 hours).'),
+	backupKeep: z
+		.number({ error: 'Enter a number of backups.' })
+		.int('A whole number.')
+		.min(1, 'Keep at least one.')
+		.max(365, 'At most 365.')
 });
 export type ShopSettingsForm = z.infer<typeof shopSettingsForm>;
 

@@ -63,6 +63,13 @@ export const envSchema = z.object({
 	SMTP_URL: z.url({ protocol: /^smtps?$/, error: 'expected an smtp:// or smtps:// address' }).optional(),
 	MAIL_FROM: z.string().default('Tidemark <no-reply@tidemark.invalid>'),
 
+	// Backups (src/lib/server/backup)
+	BACKUP_SCHEDULE: z.enum(['on', 'off'], { error: 'expected on or off' }).default('on'),
+	BACKUP_TOKEN: z.string().min(24, { error: 'expected at least 24 characters' }).optional(),
+	TIDEMARK_URL: httpUrl.optional(),
+	PG_DUMP: z.string().default('pg_dump'),
+	PG_RESTORE: z.string().default('pg_restore'),
+
 	// Payments
 	STRIPE_SECRET_KEY: z
 		.string()

@@ -23,6 +23,7 @@ import { startBackgroundMail, stopBackgroundMail } from '$lib/server/mail/worker
 import { historySize } from '$lib/server/insights/demo-history';
 import { startDemoHistory, stopDemoHistory } from '$lib/server/demo/history-status';
 import { warmUp as warmUpInsights } from '$lib/server/insights/queries';
+import { startBackups, stopBackups } from '$lib/server/backup/schedule';
 
 export async function startup() {
 	// 1. The environment: a bad or missing variable stops here, named (EnvError).
@@ -79,12 +80,16 @@ export async function startup() {
 	// 11. After the demo seeds: a demo with no history gets one (TIDEMARK_DEMO_HISTORY).
 	if (historyWasEmpty) await step('demo history', () => startDemoHistory(settings.TIDEMARK_DEMO_HISTORY));
 
-	// 12. Last: the insights' in-process copy of the facts fills in the background.
+	// 12. Scheduled backups into DATA_DIR/backups (BACKUP_SCHEDULE=off: none).
+	await step('backups', startBackups);
+
+	// 13. Last: the insights' in-process copy of the facts fills in the background.
 	warmUpInsights();
 }
 
 /** Stops what start-up began, in reverse order, then closes the database last. */
 export async function shutdown() {
+	await step('backups', stopBackups, 'shutdown');
 	await step('demo history', stopDemoHistory, 'shutdown');
 	await step('mail worker', stopBackgroundMail, 'shutdown');
 	await step('local fakes', stopFakes, 'shutdown');

@@ -5,6 +5,7 @@ import * as today from '$lib/server/today/queries';
 import * as shop from '$lib/server/today/lead';
 import * as settings from '$lib/server/settings/queries';
 import * as flowHealth from '$lib/server/flow-health/queries';
+import * as backups from '$lib/server/backup/queries';
 import { historyStatus } from '$lib/server/demo/history-status';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -33,15 +34,16 @@ async function review(userId: string, now: Date) {
 async function lead(now: Date) {
 	const { quoteWaitHours } = await settings.getWorkflow();
 	const dayStart = startOfDay(now);
-	const [intake, collections, overdue, quotes, mail, rising] = await Promise.all([
+	const [intake, collections, overdue, quotes, mail, rising, backup] = await Promise.all([
 		shop.intakeSince(dayStart),
 		shop.collections(dayStart),
 		shop.overdue(now),
 		shop.quotesWaiting(now, quoteWaitHours),
 		shop.failedMail(),
-		shop.rising()
+		shop.rising(),
+		backups.health(now)
 	]);
-	return { intake, collections, overdue, quotes, quoteWaitHours, mail, rising };
+	return { intake, collections, overdue, quotes, quoteWaitHours, mail, rising, backup };
 }
 
 export const load: PageServerLoad = async (event) => {

@@ -91,6 +91,7 @@ export const access: Record<string, Access> = {
 	'/api/payments/webhook POST': 'public',
 	'/api/openapi.json GET': 'technician',
 	'/api/device-models GET': 'technician',
+	'/api/backups POST': 'lead', // or `npm run backup` holding BACKUP_TOKEN (backup/http.ts)
 	'/api/diagnostics/event-loop GET': 'lead',
 	'/api/diagnostics/event-loop POST': 'lead',
 	'/api/jobs GET': 'technician',

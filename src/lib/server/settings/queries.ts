@@ -103,3 +103,19 @@ const workflowDefaults: WorkflowSettings = { turnaroundDays: 3, quoteWaitHours: 
 export const getWorkflow = () => readKey('workflow', workflowSettingsSchema, workflowDefaults);
 export const setWorkflow = (value: WorkflowSettings) =>
 	writeKey('workflow', workflowSettingsSchema.parse(value));
+
+// ── Backups (lead, /settings; the app's scheduler reads it) ─────────────────────────────────────
+
+/**
+ * How often the app backs itself up into DATA_DIR/backups and how many files it keeps. Daily and
+ * two weeks are common practice, no published source; a shop changes them in /settings.
+ */
+export const backupSettingsSchema = z.object({
+	everyHours: z.number().int('Whole hours.').min(1, 'At least every hour.').max(168, 'At least once a week (168 h).'),
+	keep: z.number().int('A whole number of backups.').min(1, 'Keep at least one.').max(365, 'At most 365.')
+});
+export type BackupSettings = z.infer<typeof backupSettingsSchema>;
+const backupDefaults: BackupSettings = { everyHours: 24, keep: 14 };
+
+export const getBackups = () => readKey('backups', backupSettingsSchema, backupDefaults);
+export const setBackups = (value: BackupSettings) => writeKey('backups', backupSettingsSchema.parse(value));

@@ -6,15 +6,18 @@ import { record } from '$lib/server/audit';
 import { getDb } from '$lib/server/db';
 import * as settings from '$lib/server/settings/queries';
 import { basisPointsToPercent, percentToBasisPoints, shopSettingsForm } from '$lib/schemas/settings';
+import * as backups from '$lib/server/backup/queries';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'lead');
-	const [shop, money, report, workflow] = await Promise.all([
+	const [shop, money, report, workflow, backup, recentBackups] = await Promise.all([
 		settings.getShop(),
 		settings.getMoney(),
 		settings.getReport(),
-		settings.getWorkflow()
+		settings.getWorkflow(),
+		settings.getBackups(),
+		backups.recent(5)
 	]);
 	const form = await superValidate(
 		{
@@ -25,11 +28,13 @@ export const load: PageServerLoad = async (event) => {
 			linkLifetimeDays: report.linkLifetimeDays,
 			terms: report.terms,
 			turnaroundDays: workflow.turnaroundDays,
-			quoteWaitHours: workflow.quoteWaitHours
+			quoteWaitHours: workflow.quoteWaitHours,
+			backupEveryHours: backup.everyHours,
+			backupKeep: backup.keep
 		},
 		zod4(shopSettingsForm)
 	);
-	return { form };
+	return { form, backups: recentBackups };
 };
 
 export const actions: Actions = {
@@ -48,6 +53,7 @@ export const actions: Actions = {
 		});
 		await settings.setReport({ linkLifetimeDays: d.linkLifetimeDays, terms: d.terms });
 		await settings.setWorkflow({ turnaroundDays: d.turnaroundDays, quoteWaitHours: d.quoteWaitHours });
+		await settings.setBackups({ everyHours: d.backupEveryHours, keep: d.backupKeep });
 		await record(await getDb(), {
 			actorId: lead.id,
 			action: 'settings.update',
@@ -57,7 +63,9 @@ export const actions: Actions = {
 				taxRatePercent: d.taxRatePercent,
 				linkLifetimeDays: d.linkLifetimeDays,
 				turnaroundDays: d.turnaroundDays,
-				quoteWaitHours: d.quoteWaitHours
+				quoteWaitHours: d.quoteWaitHours,
+				backupEveryHours: d.backupEveryHours,
+				backupKeep: d.backupKeep
 			}
 		});
 		return message(form, 'Settings saved. New quotes use them; quotes already saved keep their own.');

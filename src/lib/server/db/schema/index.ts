@@ -12,3 +12,4 @@ export * from './quotes';
 export * from './checklists';
 export * from './symptoms';
 export * from './ratelimits';
+export * from './backups';
