@@ -7,9 +7,9 @@ import { getMoney } from '$lib/server/settings/queries';
 import { parseAmount, parseLines, type RawLine } from '$lib/quotes/input';
 import { formatMoney } from '$lib/domain/money';
 import * as refunds from '$lib/server/payments/refunds';
-import { PaymentsNotConfiguredError } from '$lib/server/payments/config';
+import { actionFailure } from '$lib/server/http';
 import * as links from '$lib/server/reports/links';
-import { ReportRuleError, sendReport as send } from '$lib/server/reports/customer';
+import { sendReport as send } from '$lib/server/reports/customer';
 
 type User = { id: string };
 const texts = (form: FormData, name: string) =>
@@ -42,9 +42,7 @@ export async function saveQuote(event: RequestEvent<{ id: string }>, user: User)
 		const saved = await quotes.save(user.id, event.params.id, { lines: parsed.lines, proposal });
 		return { action: 'quote', ok: true, message: `Quote version ${saved.version} saved.` };
 	} catch (e) {
-		if (e instanceof quotes.QuoteRuleError)
-			return fail(400, { action: 'quote', ok: false, message: e.message });
-		throw e;
+		return actionFailure(e, { action: 'quote', ok: false });
 	}
 }
 
@@ -58,13 +56,7 @@ export async function sendReport(event: RequestEvent<{ id: string }>, user: User
 			url
 		};
 	} catch (e) {
-		if (e instanceof ReportRuleError)
-			return fail(e.code === 'not-found' ? 404 : 409, {
-				action: 'sendReport',
-				ok: false,
-				message: e.message
-			});
-		throw e;
+		return actionFailure(e, { action: 'sendReport', ok: false });
 	}
 }
 
@@ -128,9 +120,6 @@ export async function refund(event: RequestEvent<{ id: string }>, user: User) {
 					: `Refund of ${m} sent; it shows as refunded once the payment service confirms it.`
 		};
 	} catch (e) {
-		if (e instanceof refunds.RefundRuleError)
-			return refused(e.code === 'not-found' ? 404 : e.code === 'service' ? 502 : 400, e.message);
-		if (e instanceof PaymentsNotConfiguredError) return refused(503, e.message);
-		throw e;
+		return actionFailure(e, { action: 'refund', ok: false, paymentId, ...kept });
 	}
 }

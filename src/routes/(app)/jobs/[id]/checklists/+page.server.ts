@@ -3,9 +3,8 @@ import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as checklists from '$lib/server/checklists/queries';
-import { ChecklistRuleError } from '$lib/server/checklists/queries';
+import { actionFailure } from '$lib/server/http';
 import type { FunctionTestDef } from '$lib/domain/functionTests';
-import { JobRuleError } from '$lib/server/jobs/queries';
 import { statusLabels } from '$lib/domain/jobStatus';
 import { renderMarkdown } from '$lib/markdown/render';
 import type { Actions, PageServerLoad } from './$types';
@@ -47,13 +46,8 @@ function refused(action: string, status: number, message: string, field?: string
 	return fail(status, { action, ok: false, message, field });
 }
 
-/** Rule errors become 400/404 with their message; anything else is a real fault. */
-function ruled(action: string, e: unknown) {
-	if (e instanceof ChecklistRuleError)
-		return refused(action, e.code === 'not-found' ? 404 : 400, e.message, e.field);
-	if (e instanceof JobRuleError) return refused(action, 400, e.message);
-	throw e;
-}
+/** A refusal with its status and message beside its form. */
+const ruled = (action: string, e: unknown) => actionFailure(e, { action, ok: false });
 
 const movedTo = (to: string | null) =>
 	to ? ` The job is now “${statusLabels[to as keyof typeof statusLabels]}”.` : '';
