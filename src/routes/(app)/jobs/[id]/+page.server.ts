@@ -37,6 +37,7 @@ export const load: PageServerLoad = async (event) => {
 		runs,
 		photos: jobPhotos,
 		customerSide,
+		quoteForm: await quoteActions.quoteFormFor(customerSide),
 		preRepair: { items: preRepairItems, editable: preRepair.preRepairEditable.includes(job.status) }
 	};
 };
