@@ -6,7 +6,6 @@ import { deviceModelQuery } from '$lib/schemas/device-model';
 import type { DeviceModelsResponse } from '$lib/jobs/api-types';
 import type { RequestHandler } from './$types';
 
-
 /** GET /api/device-models?q= — suggestions for intake's maker and model fields. */
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
