@@ -53,8 +53,7 @@ await runWithServerModules(async (load) => {
 		// Matched by name: the error classes come from Vite's module graph, not this file's.
 		const busy = dataDirInUse(e);
 		if (busy) console.error(busy);
-		else if (e instanceof Error && e.constructor.name === 'ExportError')
-			console.error(`[flows] ${e.message}`);
+		else if (e instanceof Error && e.name === 'RuleError') console.error(`[flows] ${e.message}`);
 		else throw e;
 		code = 1;
 	}

@@ -1,6 +1,7 @@
 import { fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { requireRole, requireUser } from '$lib/server/guards';
+import { actionFailure } from '$lib/server/http';
 import * as today from '$lib/server/today/queries';
 import * as shop from '$lib/server/today/lead';
 import * as settings from '$lib/server/settings/queries';
@@ -81,9 +82,7 @@ export const actions: Actions = {
 			const job = await today.take(parsed.data.jobId, user.id);
 			return { action: 'take', taken: job.id, message: 'The job is yours: it is now in your queue.' };
 		} catch (e) {
-			if (e instanceof today.TakeError)
-				return fail(409, { action: 'take', jobId: parsed.data.jobId, message: e.message });
-			throw e;
+			return actionFailure(e, { action: 'take', jobId: parsed.data.jobId });
 		}
 	},
 	/** The overturned verdicts were seen: from now on the list starts here. */

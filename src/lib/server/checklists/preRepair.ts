@@ -3,6 +3,7 @@
  * from the job page) and editable until the repair starts, so a fault that was there before the
  * repair is on record and the customer report shows it beside the after-repair result.
  */
+import { RuleError } from '$lib/server/errors';
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { text } from '$lib/schemas/text';
@@ -71,24 +72,16 @@ export async function itemsFor(maker: string, model: string) {
 	return functionTestsFor(await capabilitiesOf(maker, model), 'before');
 }
 
-export class PreRepairRuleError extends Error {
-	constructor(
-		public code: 'not-found' | 'repair-started',
-		message: string
-	) {
-		super(message);
-	}
-}
-
 /** Records (or replaces) the pre-repair test of a job that is not yet being repaired. */
 export async function save(jobId: string, input: PreRepairInput, by: string | null) {
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const job = await jobs.lockJob(tx, jobId).catch(() => {
-			throw new PreRepairRuleError('not-found', 'No job with this id.');
+			throw new RuleError(404, 'not-found', 'No job with this id.');
 		});
 		if (!preRepairEditable.includes(job.status))
-			throw new PreRepairRuleError(
+			throw new RuleError(
+				409,
 				'repair-started',
 				'The repair has started: what worked when the phone came in can no longer be changed.'
 			);

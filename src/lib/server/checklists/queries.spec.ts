@@ -14,7 +14,8 @@ import * as runs from '$lib/server/runs/queries';
 import { recordEvent } from '$lib/server/runs/commit';
 import { makeJobIntake } from '$lib/schemas/job';
 import * as checklists from './queries';
-import { ChecklistRuleError, FUNCTION_TESTS, repairItems } from './queries';
+import { FUNCTION_TESTS, repairItems } from './queries';
+import { RuleError } from '$lib/server/errors';
 
 // Real in-memory PGlite. Fixture: the shipped restart-loop flow; answering "Boots to the lock
 // screen and stays up" at its first step reaches the verdict no-restart-on-bench, whose repair
@@ -185,8 +186,8 @@ describe('checklists of a job', () => {
 		const e = await checklists
 			.confirmVerdict(job.id, { confirmed: false, note: '  ' }, tech.id)
 			.catch((x) => x);
-		expect(e).toBeInstanceOf(ChecklistRuleError);
-		expect((e as ChecklistRuleError).field).toBe('note');
+		expect(e).toBeInstanceOf(RuleError);
+		expect((e as RuleError).field).toBe('note');
 		const db = await getDb();
 		expect(
 			await db.select().from(verdictConfirmations).where(eq(verdictConfirmations.runId, run.id))
@@ -220,10 +221,10 @@ describe('checklists of a job', () => {
 		);
 		expect(await checklists.forJob(job.id)).toBeUndefined();
 		const e = await checklists.saveRepair(job.id, [], tech.id).catch((x) => x);
-		expect((e as ChecklistRuleError).code).toBe('no-verdict');
+		expect((e as RuleError).code).toBe('no-verdict');
 		const e2 = await checklists
 			.saveRepair('00000000-0000-4000-8000-000000000000', [], tech.id)
 			.catch((x) => x);
-		expect((e2 as ChecklistRuleError).code).toBe('not-found');
+		expect((e2 as RuleError).code).toBe('not-found');
 	});
 });

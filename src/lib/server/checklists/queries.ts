@@ -9,6 +9,7 @@
  *   is "not tested" without a reason (the ready gate, gate.ts).
  * The function-test items follow the job's device model (domain/functionTests.ts).
  */
+import { RuleError } from '$lib/server/errors';
 import { isUuid } from '$lib/schemas/ids';
 import { and, desc, eq } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
@@ -33,16 +34,6 @@ type Db = Tx | Awaited<ReturnType<typeof getDb>>;
 /** The after-repair items asked of this job's device. */
 async function deviceTests(db: Db, job: { maker: string; model: string }) {
 	return functionTestsFor(await capabilitiesOf(job.maker, job.model, db), 'after');
-}
-
-export class ChecklistRuleError extends Error {
-	constructor(
-		public code: 'not-found' | 'no-verdict' | 'invalid-input',
-		message: string,
-		public field?: string
-	) {
-		super(message);
-	}
 }
 
 export type FunctionResult = 'pass' | 'fail' | 'not-tested';
@@ -132,10 +123,10 @@ export async function forJob(jobId: string): Promise<ChecklistView | undefined> 
 /** Locks the job, finds its verdict run; refusals name what is missing. */
 async function begin(tx: Tx, jobId: string) {
 	const job = await jobs.lockJob(tx, jobId).catch(() => {
-		throw new ChecklistRuleError('not-found', 'No job with this id.');
+		throw new RuleError(404, 'not-found', 'No job with this id.');
 	});
 	const found = await verdictRun(tx, jobId);
-	if (!found) throw new ChecklistRuleError('no-verdict', 'This job has no run with a verdict yet.');
+	if (!found) throw new RuleError(400, 'no-verdict', 'This job has no run with a verdict yet.');
 	return { job, ...found };
 }
 
@@ -190,7 +181,7 @@ export async function saveRepair(
 		const defs = repairItems(step.verdict.repair);
 		const unknown = done.filter((k) => !defs.some((d) => d.key === k));
 		if (unknown.length)
-			throw new ChecklistRuleError('invalid-input', 'The repair checklist has changed; reload the page.');
+			throw new RuleError(400, 'invalid-input', 'The repair checklist has changed; reload the page.');
 		const items: ChecklistItem[] = defs.map((d) => ({
 			key: d.key,
 			label: d.label,
@@ -226,7 +217,7 @@ export async function saveFunctionTest(
 		const { job, run } = await begin(tx, jobId);
 		const defs = await deviceTests(tx, job);
 		const unknown = Object.keys(input).filter((k) => !defs.some((d) => d.key === k));
-		if (unknown.length) throw new ChecklistRuleError('invalid-input', `Unknown test: ${unknown.join(', ')}.`);
+		if (unknown.length) throw new RuleError(400, 'invalid-input', `Unknown test: ${unknown.join(', ')}.`);
 		const items: ChecklistItem[] = defs.map((d) => ({
 			key: d.key,
 			label: d.label,
@@ -273,11 +264,9 @@ export async function confirmVerdict(
 ) {
 	const note = input.note.trim();
 	if (!input.confirmed && !note)
-		throw new ChecklistRuleError(
-			'invalid-input',
-			'Say what the repair found instead of the verdict.',
-			'note'
-		);
+		throw new RuleError(400, 'invalid-input', 'Say what the repair found instead of the verdict.', {
+			field: 'note'
+		});
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const { run } = await begin(tx, jobId);

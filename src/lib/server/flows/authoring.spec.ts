@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it, vi } from 'vitest';
+import { RuleError } from '$lib/server/errors';
 import { eq } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { auditLog } from '$lib/server/db/schema';
@@ -116,9 +117,10 @@ describe('draft lifecycle', () => {
 		step.outcomes![0].next = 'nowhere-step';
 		const saved = await authoring.saveDraft(ana, draft.id, { revision: 1, definition: def });
 		const refused = await authoring.submit(ana, draft.id).catch((e) => e);
-		expect(refused).toBeInstanceOf(authoring.FlowAuthoringError);
+		expect(refused).toBeInstanceOf(RuleError);
+		expect(refused.status).toBe(400);
 		expect(refused.code).toBe('invalid');
-		expect(refused.problems).toContainEqual(
+		expect(authoring.problemsOf(refused)).toContainEqual(
 			expect.objectContaining({ code: 'unknown-target', step: stepId })
 		);
 		expect((await library.getVersionById(draft.id))!.status).toBe('draft');
@@ -156,7 +158,10 @@ describe('optimistic locking', () => {
 			.saveDraft(ana, draft.id, { revision: 1, definition: mine })
 			.catch((e) => e);
 		expect(conflict).toMatchObject({ code: 'conflict' });
-		expect(conflict.current).toMatchObject({ revision: 2, definition: { summary: 'Ben’s wording.' } });
+		expect(authoring.currentOf(conflict)).toMatchObject({
+			revision: 2,
+			definition: { summary: 'Ben’s wording.' }
+		});
 		expect((await library.getVersionById(draft.id))!.definition.summary).toBe('Ben’s wording.');
 		// Having seen theirs, Ana saves knowingly over revision 2.
 		expect((await authoring.saveDraft(ana, draft.id, { revision: 2, definition: mine })).revision).toBe(3);
@@ -169,7 +174,7 @@ describe('optimistic locking', () => {
 			.saveDraft(ana, draft.id, { revision: row.revision, definition: { title: 'x' } })
 			.catch((e) => e);
 		expect(broken).toMatchObject({ code: 'invalid' });
-		expect(broken.problems[0].code).toBe('schema');
+		expect(authoring.problemsOf(broken)[0].code).toBe('schema');
 		await expect(
 			authoring.saveDraft(ana, draft.id, {
 				revision: row.revision,

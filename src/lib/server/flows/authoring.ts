@@ -2,8 +2,8 @@
 /**
  * The life of a flow version: draft → in review → published (N+1, immutable) → retired.
  * Seniors and leads author; another senior or a lead reviews (four eyes). Every change is audited
- * in the same transaction. Routes map FlowAuthoringError codes to HTTP: not-found 404, forbidden 403,
- * conflict 409, state 409, invalid 400.
+ * in the same transaction. A refusal is a RuleError (`refuse` below gives each code its status):
+ * not-found 404, forbidden 403, conflict 409, state 409, invalid 400.
  */
 import { and, desc, eq, isNotNull, sql } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
@@ -15,41 +15,55 @@ import { schemaProblems } from '$lib/flows/problems';
 import { flowSchema, RESERVED_FLOW_IDS, type FlowDefinition } from '$lib/flows/schema';
 import { hasRole, type Role } from '$lib/roles';
 import { definitionColumns, highestVersion, withStepOrder, type StoredVersion } from './queries';
+import { draftJson, type DraftJson } from './draft-json';
+import { RuleError } from '$lib/server/errors';
 
 export type Actor = { id: string; role: Role };
 export type AuthoringErrorCode = 'not-found' | 'forbidden' | 'conflict' | 'state' | 'invalid';
 
-export class FlowAuthoringError extends Error {
-	constructor(
-		public code: AuthoringErrorCode,
-		message: string,
-		public problems: FlowProblem[] = [],
-		/** On a save conflict: the draft as it is now, so the editor can offer a clear choice. */
-		public current?: StoredVersion
-	) {
-		super(message);
-	}
+const statusOf = { 'not-found': 404, forbidden: 403, conflict: 409, state: 409, invalid: 400 } as const;
+
+/**
+ * A refusal of the lifecycle. `problems` are the flow's problems (an import or review the check
+ * refuses); on a save conflict `current` is the draft as it is now, so the editor can offer a
+ * clear choice.
+ */
+function refuse(
+	code: AuthoringErrorCode,
+	message: string,
+	problems: FlowProblem[] = [],
+	current?: StoredVersion
+) {
+	return new RuleError(statusOf[code], code, message, {
+		...(problems.length ? { problems } : {}),
+		...(current ? { current: draftJson(current) } : {})
+	});
 }
+
+/** The flow problems a refusal carries (none for most). */
+export const problemsOf = (e: unknown): FlowProblem[] =>
+	e instanceof RuleError ? ((e.details.problems as FlowProblem[] | undefined) ?? []) : [];
+/** On a save conflict: the draft as it is now. */
+export const currentOf = (e: unknown): DraftJson | undefined =>
+	e instanceof RuleError && e.code === 'conflict' ? (e.details.current as DraftJson | undefined) : undefined;
 
 function assertUsableId(id: string, nothing: string) {
 	if (RESERVED_FLOW_IDS.includes(id))
-		throw new FlowAuthoringError(
-			'invalid',
-			`The flow id "${id}" is taken by the library's own pages; ${nothing}`,
-			[{ code: 'schema', path: ['id'], message: `Choose another id than "${id}".` }]
-		);
+		throw refuse('invalid', `The flow id "${id}" is taken by the library's own pages; ${nothing}`, [
+			{ code: 'schema', path: ['id'], message: `Choose another id than "${id}".` }
+		]);
 }
 
 function assertSenior(actor: Actor) {
 	if (!hasRole(actor.role, 'senior'))
-		throw new FlowAuthoringError('forbidden', 'Only senior technicians and leads author and review flows.');
+		throw refuse('forbidden', 'Only senior technicians and leads author and review flows.');
 }
 
 /** Shape check only: a draft may still have graph problems, but it must be a flow. */
 function validShape(input: unknown): FlowDefinition {
 	const parsed = flowSchema.safeParse(input);
 	if (!parsed.success)
-		throw new FlowAuthoringError(
+		throw refuse(
 			'invalid',
 			'The draft is not a flow yet; fix the fields marked.',
 			schemaProblems(parsed.error)
@@ -59,7 +73,7 @@ function validShape(input: unknown): FlowDefinition {
 
 async function lockVersion(tx: Tx, id: string): Promise<StoredVersion> {
 	const [row] = await tx.select().from(flowVersions).where(eq(flowVersions.id, id)).for('update');
-	if (!row) throw new FlowAuthoringError('not-found', 'No such draft or version.');
+	if (!row) throw refuse('not-found', 'No such draft or version.');
 	return withStepOrder(row);
 }
 
@@ -69,7 +83,7 @@ function assertStatus(row: StoredVersion, status: StoredVersion['status'], doing
 		row.status === 'published' || row.status === 'retired'
 			? `version ${row.version} is ${row.status}`
 			: `it is ${row.status}`;
-	throw new FlowAuthoringError(
+	throw refuse(
 		'state',
 		`Cannot ${doing}: ${now}. Published versions never change; start a new draft instead.`
 	);
@@ -88,17 +102,14 @@ export async function createDraft(
 		if ('fromVersionId' in input) {
 			const [from] = await tx.select().from(flowVersions).where(eq(flowVersions.id, input.fromVersionId));
 			if (!from || from.version === null)
-				throw new FlowAuthoringError(
-					'not-found',
-					'Drafts start from a published version; that one does not exist.'
-				);
+				throw refuse('not-found', 'Drafts start from a published version; that one does not exist.');
 			definition = withStepOrder(from).definition;
 			basedOnId = from.id;
 		} else {
 			definition = validShape(input.definition);
 			assertUsableId(definition.id, 'choose another.');
 			if (!(await addFlowRow(tx, definition)))
-				throw new FlowAuthoringError(
+				throw refuse(
 					'conflict',
 					`A flow with the id "${definition.id}" already exists; start a draft from its published version, or choose another id.`
 				);
@@ -157,7 +168,7 @@ export async function importDraft(actor: Actor, text: string): Promise<ImportedD
 	assertSenior(actor);
 	const parsed = parseFlow(text);
 	if (!parsed.ok)
-		throw new FlowAuthoringError(
+		throw refuse(
 			'invalid',
 			'The file is not a flow yet; nothing was imported. Fix the problems below and try again.',
 			parsed.problems
@@ -199,7 +210,7 @@ export async function saveDraft(
 		const row = await lockVersion(tx, draftId);
 		assertStatus(row, 'draft', 'edit this');
 		if (row.revision !== input.revision)
-			throw new FlowAuthoringError(
+			throw refuse(
 				'conflict',
 				'Someone saved this draft after you opened it. Load their version, or save yours over it knowingly.',
 				[],
@@ -207,11 +218,9 @@ export async function saveDraft(
 			);
 		const definition = validShape(input.definition);
 		if (definition.id !== row.flowId)
-			throw new FlowAuthoringError(
-				'invalid',
-				`A draft keeps its flow's id "${row.flowId}"; start a new flow for a new id.`,
-				[{ code: 'schema', path: ['id'], message: `The id must stay "${row.flowId}".` }]
-			);
+			throw refuse('invalid', `A draft keeps its flow's id "${row.flowId}"; start a new flow for a new id.`, [
+				{ code: 'schema', path: ['id'], message: `The id must stay "${row.flowId}".` }
+			]);
 		const [saved] = await tx
 			.update(flowVersions)
 			.set({
@@ -242,7 +251,7 @@ export async function submit(actor: Actor, draftId: string): Promise<StoredVersi
 		assertStatus(row, 'draft', 'submit this');
 		const check = checkFlow(row.definition);
 		if (!check.ok)
-			throw new FlowAuthoringError(
+			throw refuse(
 				'invalid',
 				`The draft has ${check.problems.length} problem${check.problems.length === 1 ? '' : 's'}; fix them before review.`,
 				check.problems
@@ -271,7 +280,7 @@ export async function submit(actor: Actor, draftId: string): Promise<StoredVersi
 /** Nobody reviews a draft they wrote or saved: the author and every editor are excluded. */
 async function assertFourEyes(tx: Tx, actor: Actor, row: StoredVersion, doing: string) {
 	if (row.authorId === actor.id)
-		throw new FlowAuthoringError(
+		throw refuse(
 			'forbidden',
 			`You wrote this draft, so you cannot ${doing} it: another senior or a lead reviews it.`
 		);
@@ -287,7 +296,7 @@ async function assertFourEyes(tx: Tx, actor: Actor, row: StoredVersion, doing: s
 		)
 		.limit(1);
 	if (edited)
-		throw new FlowAuthoringError(
+		throw refuse(
 			'forbidden',
 			`You edited this draft, so you cannot ${doing} it: another senior or a lead reviews it.`
 		);
@@ -308,7 +317,7 @@ export async function reviewRefusal(actor: Actor, draftId: string): Promise<stri
 			await assertFourEyes(tx, actor, withStepOrder(row), 'review');
 			return null;
 		} catch (e) {
-			if (e instanceof FlowAuthoringError) return e.message;
+			if (e instanceof RuleError) return e.message;
 			throw e;
 		}
 	});
@@ -323,8 +332,7 @@ export async function approve(actor: Actor, draftId: string): Promise<StoredVers
 		assertStatus(row, 'in-review', 'approve this');
 		await assertFourEyes(tx, actor, row, 'approve');
 		const check = checkFlow(row.definition);
-		if (!check.ok)
-			throw new FlowAuthoringError('invalid', 'The draft no longer passes the check.', check.problems);
+		if (!check.ok) throw refuse('invalid', 'The draft no longer passes the check.', check.problems);
 		// The flow row is the lock that makes "highest + 1" safe against a concurrent approval.
 		await tx.select({ id: flows.id }).from(flows).where(eq(flows.id, row.flowId)).for('update');
 		const version = (await highestVersion(tx, row.flowId)) + 1;
@@ -360,7 +368,7 @@ export async function approve(actor: Actor, draftId: string): Promise<StoredVers
 export async function sendBack(actor: Actor, draftId: string, comment: string): Promise<StoredVersion> {
 	assertSenior(actor);
 	const text = comment.trim();
-	if (!text) throw new FlowAuthoringError('invalid', 'Say what needs changing, so the author knows.');
+	if (!text) throw refuse('invalid', 'Say what needs changing, so the author knows.');
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const row = await lockVersion(tx, draftId);
@@ -397,7 +405,7 @@ export async function retire(actor: Actor, flowId: string, version: number): Pro
 			.select({ id: flowVersions.id })
 			.from(flowVersions)
 			.where(and(eq(flowVersions.flowId, flowId), eq(flowVersions.version, version)));
-		if (!found) throw new FlowAuthoringError('not-found', `Flow "${flowId}" has no version ${version}.`);
+		if (!found) throw refuse('not-found', `Flow "${flowId}" has no version ${version}.`);
 		const row = await lockVersion(tx, found.id);
 		assertStatus(row, 'published', 'retire this');
 		const now = new Date();

@@ -1,4 +1,5 @@
 import fs from 'node:fs';
+import { RuleError } from '$lib/server/errors';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
@@ -100,12 +101,17 @@ describe('import of a .flow.yaml as a draft', () => {
 		];
 		for (const [text, problem] of cases) {
 			const e = await authoring.importDraft(ana, text).catch((err: unknown) => err);
-			expect(e).toBeInstanceOf(authoring.FlowAuthoringError);
-			const err = e as authoring.FlowAuthoringError;
+			expect(e).toBeInstanceOf(RuleError);
+			const err = e as RuleError;
 			expect(err.code).toBe('invalid');
 			expect(err.message).toMatch(/nothing was imported/);
-			expect(err.problems.length).toBeGreaterThan(0);
-			expect(err.problems.map((p) => p.message).join('\n')).toMatch(problem);
+			expect(authoring.problemsOf(err).length).toBeGreaterThan(0);
+			expect(
+				authoring
+					.problemsOf(err)
+					.map((p) => p.message)
+					.join('\n')
+			).toMatch(problem);
 		}
 		const reserved = await authoring
 			.importDraft(ana, (await v1Text()).replace(`id: ${FLOW}`, 'id: new'))
@@ -116,7 +122,7 @@ describe('import of a .flow.yaml as a draft', () => {
 		});
 		const huge = `id: x\nsummary: "${'a'.repeat(600_000)}"\n`;
 		await expect(authoring.importDraft(ana, huge)).rejects.toMatchObject({
-			problems: [expect.objectContaining({ message: expect.stringMatching(/at most 512000/) })]
+			details: { problems: [expect.objectContaining({ message: expect.stringMatching(/at most 512000/) })] }
 		});
 		expect(await versionCount()).toBe(before);
 	});

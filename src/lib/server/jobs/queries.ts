@@ -5,6 +5,7 @@
  * Runs build on `get`, `lockJob` and `transition`.
  */
 import { isUuid } from '$lib/schemas/ids';
+import { RuleError } from '$lib/server/errors';
 import { and, asc, desc, eq, ilike, isNull, or, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { getDb, type Tx } from '$lib/server/db';
@@ -38,17 +39,6 @@ import {
 
 export { formatJobNumber } from '$lib/schemas/job';
 
-/** A refusal the caller shows to the user: nothing was changed. */
-export class JobRuleError extends Error {
-	constructor(
-		public code: 'not-found' | 'invalid-transition' | 'not-a-technician' | 'invalid-input' | 'untested',
-		message: string,
-		public field?: string
-	) {
-		super(message);
-	}
-}
-
 export { nextStatuses };
 
 /** `preRepairTest`: what worked when the phone came in (checklists/preRepair.ts builds it). */
@@ -59,9 +49,9 @@ export async function create(
 ): Promise<Job> {
 	// The schema refuses these as null; checked again so the columns' NOT NULL is never the message.
 	const { liquid, passcodeStatus } = input;
-	if (liquid === null) throw new JobRuleError('invalid-input', 'Choose the liquid.', 'liquid');
+	if (liquid === null) throw new RuleError(400, 'invalid-input', 'Choose the liquid.', { field: 'liquid' });
 	if (passcodeStatus === null)
-		throw new JobRuleError('invalid-input', 'Choose the passcode status.', 'passcodeStatus');
+		throw new RuleError(400, 'invalid-input', 'Choose the passcode status.', { field: 'passcodeStatus' });
 	const db = await getDb();
 	const rating = ratingOf(input);
 	const exposure = exposureOf(input);
@@ -341,7 +331,7 @@ export async function get(id: string): Promise<JobDetail | undefined> {
 /** Locks the job row for the rest of the transaction (runs use it too). */
 export async function lockJob(tx: Tx, id: string): Promise<Job> {
 	const [job] = isUuid(id) ? await tx.select().from(jobs).where(eq(jobs.id, id)).for('update') : [];
-	if (!job) throw new JobRuleError('not-found', 'No job with this id.');
+	if (!job) throw new RuleError(404, 'not-found', 'No job with this id.');
 	return job;
 }
 
@@ -360,20 +350,21 @@ export async function transition(
 		const job = await lockJob(t, jobId);
 		if (!canTransition(job.status, to)) {
 			const allowed = nextStatuses(job.status);
-			throw new JobRuleError(
+			throw new RuleError(
+				409,
 				'invalid-transition',
 				`A job that is “${statusLabels[job.status]}” cannot move to “${statusLabels[to] ?? to}”. ${
 					allowed.length
 						? `It can move to: ${allowed.map((s) => statusLabels[s]).join(', ')}.`
 						: 'It is closed.'
 				}`,
-				'status'
+				{ field: 'status' }
 			);
 		}
 		// The ready gate (checklists/gate.ts): a repaired phone leaves tested, or with reasons.
 		if (to === 'ready' && job.status === 'testing') {
 			const held = await readyGate(t, job, note);
-			if (held) throw new JobRuleError('untested', held, 'status');
+			if (held) throw new RuleError(409, 'untested', held, { field: 'status' });
 		}
 		const [updated] = await t
 			.update(jobs)
@@ -413,7 +404,9 @@ export async function assignTechnician(
 				.from(users)
 				.where(and(eq(users.id, technicianId), eq(users.disabled, false)));
 			if (!member)
-				throw new JobRuleError('not-a-technician', 'Choose an active staff member.', 'technicianId');
+				throw new RuleError(400, 'not-a-technician', 'Choose an active staff member.', {
+					field: 'technicianId'
+				});
 		}
 		if (job.technicianId === technicianId) return job;
 		const [updated] = await tx

@@ -1,11 +1,9 @@
+import { RuleError } from '$lib/server/errors';
 import { desc, eq, sql } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { outgoingMail, mailStatuses, type MailStatus } from '$lib/server/db/schema/mail';
 import { record } from '$lib/server/audit';
 import { wakeWorker } from './queue';
-
-/** A refusal the Outbox shows on the row: nothing was changed. */
-export class OutboxRuleError extends Error {}
 
 const listColumns = {
 	id: outgoingMail.id,
@@ -68,9 +66,13 @@ export async function retryNow(actorId: string, id: string) {
 	const db = await getDb();
 	const updated = await db.transaction(async (tx) => {
 		const [mail] = await tx.select().from(outgoingMail).where(eq(outgoingMail.id, id)).for('update');
-		if (!mail) throw new OutboxRuleError('No mail with this id.');
+		if (!mail) throw new RuleError(400, 'not-found', 'No mail with this id.');
 		if (mail.status !== 'failed')
-			throw new OutboxRuleError(`Only a failed mail can be retried; this one is ${mail.status}.`);
+			throw new RuleError(
+				400,
+				'not-failed',
+				`Only a failed mail can be retried; this one is ${mail.status}.`
+			);
 		const now = new Date();
 		const [row] = await tx
 			.update(outgoingMail)

@@ -18,7 +18,7 @@ import { dataOutcomes } from '$lib/domain/data-first';
 import { passcodeStatuses } from '$lib/schemas/job';
 import { photoSources, type PhotoDto } from '$lib/photos/limits';
 import type { PhotoErrorResponse, PhotoListResponse, PhotoUploadResponse } from '$lib/photos/api';
-import type { ApiError, Jsonify } from '$lib/server/jobs/http';
+import type { ApiError, Jsonify } from '$lib/server/http';
 import type { JobDetail, JobList } from '$lib/server/jobs/queries';
 import type { DeviceModelSuggestion } from '$lib/server/jobs/device-models';
 
@@ -28,6 +28,10 @@ const issue = z.object({ path: z.string(), message: z.string() });
 export const apiError = z
 	.object({
 		message: z.string().meta({ description: 'A sentence for the person at the bench.' }),
+		code: z
+			.string()
+			.optional()
+			.meta({ description: 'A stable machine code for the refusal, e.g. not-found, invalid-transition.' }),
 		issues: z.array(issue).optional().meta({ description: 'One entry per field that needs attention.' })
 	})
 	.meta({ id: 'ApiError' });

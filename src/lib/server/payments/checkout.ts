@@ -1,12 +1,10 @@
+import { RuleError } from '$lib/server/errors';
 import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { getDb } from '$lib/server/db';
 import { payments } from '$lib/server/db/schema/payments';
 import { MAX_MINOR } from '$lib/domain/money';
 import { paymentsClient } from './config';
-
-/** A refusal shown to whoever asked: nothing was charged or changed. */
-export class PaymentRuleError extends Error {}
 
 const httpUrl = z.url({ protocol: /^https?$/, message: 'A return address must be an http(s) URL.' });
 
@@ -47,7 +45,8 @@ export async function createCheckout(input: CheckoutInput): Promise<Checkout> {
 	);
 
 	const earlier = await db.select().from(payments).where(ref).orderBy(desc(payments.createdAt));
-	if (earlier.some((p) => p.status === 'paid')) throw new PaymentRuleError('This has already been paid.');
+	if (earlier.some((p) => p.status === 'paid'))
+		throw new RuleError(409, 'already-paid', 'This has already been paid.');
 	const open = earlier.find(
 		(p) =>
 			p.status === 'pending' &&

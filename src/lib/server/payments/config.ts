@@ -1,5 +1,6 @@
 import Stripe from 'stripe';
 import { env } from '$lib/server/env';
+import { RuleError } from '$lib/server/errors';
 
 /**
  * How the app reaches the payment service: STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET when set;
@@ -38,16 +39,18 @@ export function setFakePayments(config: Omit<PaymentsConfig, 'fake'> | null) {
 	g.__tidemarkStripe = undefined;
 }
 
-export class PaymentsNotConfiguredError extends Error {
-	constructor() {
-		super('Payments are not set up: set STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET.');
-	}
-}
+/** Asked to charge or refund with no payment service set up: a 503 the person can act on. */
+export const paymentsNotConfigured = () =>
+	new RuleError(
+		503,
+		'payments-not-configured',
+		'Payments are not set up: set STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET.'
+	);
 
 /** The SDK client for the current configuration, made once per configuration. */
 export function paymentsClient(): Stripe {
 	const config = paymentsConfig();
-	if (!config) throw new PaymentsNotConfiguredError();
+	if (!config) throw paymentsNotConfigured();
 	const key = JSON.stringify([config.secretKey, config.endpoint]);
 	if (g.__tidemarkStripe?.key !== key) {
 		const client = new Stripe(config.secretKey, {

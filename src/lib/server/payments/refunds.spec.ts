@@ -1,5 +1,6 @@
 // Over 300 lines on purpose: a spec: every refund rule, end to end through the local payments fake.
 import crypto from 'node:crypto';
+import { RuleError } from '$lib/server/errors';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
@@ -11,7 +12,7 @@ import { actions } from '../../../routes/(app)/jobs/[id]/+page.server';
 import { applyJobPayment } from '$lib/server/reports/customer';
 import { setFakePayments } from './config';
 import { createCheckout } from './checkout';
-import { RefundRuleError, requestRefund, settled } from './refunds';
+import { requestRefund, settled } from './refunds';
 import { pay, postWebhook, signer, startWebhookHarness } from './fixtures';
 
 // The job effect as it is, watched: which refund changes the webhook hands to it.
@@ -139,7 +140,7 @@ describe('refunds through the SDK, the local fake and the signed webhook', () =>
 		await fake.settled();
 		const before = fake.refunds.size;
 		const over = refund(p.id, 'RF-2', 2001);
-		await expect(over).rejects.toBeInstanceOf(RefundRuleError);
+		await expect(over).rejects.toBeInstanceOf(RuleError);
 		await expect(over).rejects.toThrow('At most €20.00 can be refunded: €50.00 paid, €30.00 refunded.');
 		expect(fake.refunds.size).toBe(before);
 		expect(await refundRows(p.id)).toHaveLength(1);

@@ -5,6 +5,7 @@
  * at the service through the SDK. Only the service's signed refund webhook (`applyRefund`, inside
  * the webhook's transaction) confirms it and adds it to `payments.refunded_minor`, once per refund.
  */
+import { RuleError } from '$lib/server/errors';
 import { and, asc, eq, inArray, or, sql } from 'drizzle-orm';
 import type Stripe from 'stripe';
 import { z } from 'zod';
@@ -16,15 +17,6 @@ import { MAX_MINOR, formatMoney } from '$lib/domain/money';
 import { applyPaymentChange } from './changes';
 import { paymentsClient } from './config';
 import type { Applied } from './webhook';
-
-export class RefundRuleError extends Error {
-	constructor(
-		public code: 'not-found' | 'not-paid' | 'too-much' | 'service',
-		message: string
-	) {
-		super(message);
-	}
-}
 
 const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const money = (minor: number, currency: string) => formatMoney(minor, currency.toUpperCase(), 'en-GB');
@@ -61,7 +53,7 @@ async function heldMinor(tx: Tx, paymentId: string) {
 }
 
 /**
- * Records a lead's refund and creates it at the service. Refuses (RefundRuleError, nothing
+ * Records a lead's refund and creates it at the service. Refuses (RuleError, nothing
  * changed) a payment of another job, one that is not paid, and any amount beyond what is left
  * (paid − refunded − still pending). Returns the pending refund; the webhook confirms it.
  */
@@ -71,9 +63,10 @@ export async function requestRefund(actorId: string, input: RefundInput) {
 	const db = await getDb();
 	const { refund, payment } = await db.transaction(async (tx) => {
 		const payment = await paymentInScope(data.paymentId, data.scope, tx);
-		if (!payment) throw new RefundRuleError('not-found', 'No such payment on this job.');
+		if (!payment) throw new RuleError(404, 'not-found', 'No such payment on this job.');
 		if (payment.status !== 'paid')
-			throw new RefundRuleError(
+			throw new RuleError(
+				400,
 				'not-paid',
 				payment.status === 'refunded'
 					? 'This payment has already been refunded in full.'
@@ -85,7 +78,8 @@ export async function requestRefund(actorId: string, input: RefundInput) {
 			const m = (x: number) => money(x, payment.currency);
 			const parts = [`${m(payment.amountMinor)} paid`, `${m(payment.refundedMinor)} refunded`];
 			if (held) parts.push(`${m(held)} waiting for the payment service`);
-			throw new RefundRuleError(
+			throw new RuleError(
+				400,
 				'too-much',
 				left <= 0
 					? `Nothing is left to refund on this payment (${parts.join(', ')}).`
@@ -158,7 +152,7 @@ export async function requestRefund(actorId: string, input: RefundInput) {
 					details: { refundId: refund.id, reason }
 				});
 		});
-		throw new RefundRuleError('service', `The payment service did not refund: ${reason}`);
+		throw new RuleError(502, 'service', `The payment service did not refund: ${reason}`);
 	}
 }
 

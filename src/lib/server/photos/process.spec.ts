@@ -2,7 +2,8 @@ import exifr from 'exifr';
 import sharp from 'sharp';
 import { describe, expect, it } from 'vitest';
 import { MAX_PHOTO_BYTES } from '$lib/photos/limits';
-import { heicSupported, PhotoRejected, processPhoto } from './process';
+import { heicSupported, processPhoto } from './process';
+import { RuleError } from '$lib/server/errors';
 import { gpsExif, halves, heicHeader, jpegWithGps, png, pngClaiming } from './fixtures';
 
 async function rejection(bytes: Uint8Array, opts?: Parameters<typeof processPhoto>[1]) {
@@ -10,8 +11,8 @@ async function rejection(bytes: Uint8Array, opts?: Parameters<typeof processPhot
 		() => null,
 		(err: unknown) => err
 	);
-	expect(e).toBeInstanceOf(PhotoRejected);
-	return e as PhotoRejected;
+	expect(e).toBeInstanceOf(RuleError);
+	return e as RuleError;
 }
 
 /** The red/green/blue of one pixel. */

@@ -9,23 +9,15 @@ import {
 	formatBytes,
 	type PhotoRejectionCode
 } from '$lib/photos/limits';
+import { RuleError } from '$lib/server/errors';
 
-/** A file that is not stored, with the reason in words for the person who chose it. */
-export class PhotoRejected extends Error {
-	constructor(
-		readonly code: PhotoRejectionCode,
-		message: string
-	) {
-		super(message);
-	}
-	/** 413 for size, 415 for the type, 422 for a file that claims to be an image but is not readable. */
-	get status() {
-		return this.code === 'too-big'
-			? 413
-			: this.code === 'corrupt' || this.code === 'too-many-pixels'
-				? 422
-				: 415;
-	}
+/**
+ * A file that is not stored, with the reason in words for the person who chose it: 413 for size,
+ * 422 for a file that claims to be an image but is not readable, 415 for the type.
+ */
+export function photoRejected(code: PhotoRejectionCode, message: string) {
+	const status = code === 'too-big' ? 413 : code === 'corrupt' || code === 'too-many-pixels' ? 422 : 415;
+	return new RuleError(status, code, message);
 }
 
 /**
@@ -79,9 +71,9 @@ export async function processPhoto(
 ): Promise<ProcessedPhoto> {
 	const maxBytes = opts.maxBytes ?? MAX_PHOTO_BYTES;
 	const maxPixels = opts.maxPixels ?? MAX_PHOTO_PIXELS;
-	if (upload.byteLength === 0) throw new PhotoRejected('empty', 'The file is empty.');
+	if (upload.byteLength === 0) throw photoRejected('empty', 'The file is empty.');
 	if (upload.byteLength > maxBytes) {
-		throw new PhotoRejected(
+		throw photoRejected(
 			'too-big',
 			`The file is ${formatBytes(upload.byteLength)}; photos may be at most ${formatBytes(maxBytes)}. ` +
 				'Take it at a lower resolution or export a smaller copy.'
@@ -91,19 +83,19 @@ export async function processPhoto(
 	const sniffed = await fileTypeFromBuffer(upload);
 	const kind = sniffed ? kinds[sniffed.mime] : undefined;
 	if (!sniffed || !sniffed.mime.startsWith('image/')) {
-		throw new PhotoRejected(
+		throw photoRejected(
 			'not-an-image',
 			`This file is not an image${sniffed ? ` (its content is ${sniffed.ext.toUpperCase()})` : ''}, whatever its name says. Photos must be ${acceptedTypesText}.`
 		);
 	}
 	if (kind === 'heic' && !heicSupported) {
-		throw new PhotoRejected(
+		throw photoRejected(
 			'unsupported-type',
 			'HEIC photos cannot be read on this server. Set the camera to save JPEG ("most compatible") or share the photo as JPEG, then upload again.'
 		);
 	}
 	if (!kind) {
-		throw new PhotoRejected(
+		throw photoRejected(
 			'unsupported-type',
 			`${sniffed.ext.toUpperCase()} images are not accepted. Photos must be ${acceptedTypesText}.`
 		);
@@ -118,7 +110,7 @@ export async function processPhoto(
 		throw decodeFailure(e, maxPixels);
 	}
 	if (!meta.width || !meta.height)
-		throw new PhotoRejected('corrupt', 'The image has no size; it cannot be read.');
+		throw photoRejected('corrupt', 'The image has no size; it cannot be read.');
 
 	// Each variant is its own pipeline from the upload (libvips then shrinks JPEGs while decoding,
 	// which is faster than resizing decoded pixels); effort 2 keeps WebP encoding near 0.5 s.
@@ -163,12 +155,12 @@ async function encode(img: Sharp, mime: string): Promise<StoredVariant> {
 function decodeFailure(e: unknown, maxPixels: number) {
 	const message = e instanceof Error ? e.message : String(e);
 	if (/pixel limit/i.test(message)) {
-		return new PhotoRejected(
+		return photoRejected(
 			'too-many-pixels',
 			`The image is larger than ${Math.round(maxPixels / 1_000_000)} megapixels; export a smaller copy and upload that.`
 		);
 	}
-	return new PhotoRejected(
+	return photoRejected(
 		'corrupt',
 		'The image is damaged or incomplete and cannot be read (the upload may have been cut off). Try the original file again.'
 	);

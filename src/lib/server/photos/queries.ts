@@ -16,21 +16,7 @@ import { getStore, keyOf, type BlobStore } from '$lib/server/storage';
 import { hasRole, type Role } from '$lib/roles';
 import { photoUrl, type PhotoDto, type PhotoSize, type PhotoSource } from '$lib/photos/limits';
 import { processPhoto } from './process';
-
-export { PhotoRejected } from './process';
-
-/** A refusal that is not about the file itself: nothing was changed. */
-export class PhotoRuleError extends Error {
-	constructor(
-		readonly code: 'not-found' | 'forbidden' | 'unknown-step',
-		message: string
-	) {
-		super(message);
-	}
-	get status() {
-		return this.code === 'not-found' ? 404 : this.code === 'forbidden' ? 403 : 400;
-	}
-}
+import { RuleError } from '$lib/server/errors';
 
 export type PhotoTarget = {
 	jobId: string;
@@ -93,9 +79,9 @@ export async function runTarget(runId: string, stepId: string): Promise<PhotoTar
 		.from(runs)
 		.innerJoin(flowVersions, eq(flowVersions.id, runs.flowVersionId))
 		.where(eq(runs.id, runId));
-	if (!run) throw new PhotoRuleError('not-found', 'No such run.');
+	if (!run) throw new RuleError(404, 'not-found', 'No such run.');
 	if (!run.steps.includes(stepId)) {
-		throw new PhotoRuleError('unknown-step', `The flow of this run has no step "${stepId}".`);
+		throw new RuleError(400, 'unknown-step', `The flow of this run has no step "${stepId}".`);
 	}
 	// The latest answer at that step, if it has one, ties the photo to that recorded answer.
 	const [answered] = await db
@@ -119,7 +105,7 @@ export async function add(
 ): Promise<{ photo: PhotoDto; duplicate: boolean }> {
 	const db = await getDb();
 	const [job] = await db.select({ id: jobs.id }).from(jobs).where(eq(jobs.id, target.jobId));
-	if (!job) throw new PhotoRuleError('not-found', 'No such job.');
+	if (!job) throw new RuleError(404, 'not-found', 'No such job.');
 	// Decoding and re-encoding is the slow part; it happens before any transaction is open.
 	const photo = await processPhoto(input.bytes);
 	const runId = target.runId ?? null;
@@ -240,7 +226,8 @@ export async function read(
 /** Whoever uploaded a photo may change or remove it; seniors and leads may change any. */
 function assertMayChange(actor: Actor, row: Attachment) {
 	if (row.uploadedBy !== actor.id && !hasRole(actor.role, 'senior')) {
-		throw new PhotoRuleError(
+		throw new RuleError(
+			403,
 			'forbidden',
 			'Only the person who uploaded this photo, a senior technician or the shop lead can change it.'
 		);
@@ -255,7 +242,7 @@ export async function update(
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const [row] = await tx.select().from(attachments).where(eq(attachments.id, id)).for('update');
-		if (!row) throw new PhotoRuleError('not-found', 'No such photo.');
+		if (!row) throw new RuleError(404, 'not-found', 'No such photo.');
 		assertMayChange(actor, row);
 		const set: Partial<Attachment> = {};
 		if (changes.caption !== undefined) set.caption = changes.caption.trim();
@@ -283,7 +270,7 @@ export async function remove(actor: Actor, id: string, store: BlobStore = getSto
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const [row] = await tx.select().from(attachments).where(eq(attachments.id, id)).for('update');
-		if (!row) throw new PhotoRuleError('not-found', 'No such photo.');
+		if (!row) throw new RuleError(404, 'not-found', 'No such photo.');
 		assertMayChange(actor, row);
 		const keys = [row.originalKey, row.displayKey, row.thumbKey];
 		await lockKeys(tx, keys);

@@ -3,6 +3,7 @@
  * approve and decline by the customer, and what is still to pay. Totals always come from
  * quoteTotals() in $lib/domain/money with the tax settings copied onto the version.
  */
+import { RuleError } from '$lib/server/errors';
 import { isUuid } from '$lib/schemas/ids';
 import { and, desc, eq, inArray, like, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
@@ -14,17 +15,6 @@ import { record } from '$lib/server/audit';
 import { lockJob } from '$lib/server/jobs/queries';
 import { getMoney } from '$lib/server/settings/queries';
 import { quoteLineSchema, quoteTotals, type QuoteLine } from '$lib/domain/money';
-
-/** A refusal shown beside the control: nothing was changed. */
-export class QuoteRuleError extends Error {
-	constructor(
-		public code: 'not-found' | 'invalid' | 'not-open' | 'already-decided' | 'nothing-due' | 'no-quote',
-		message: string,
-		public field?: string
-	) {
-		super(message);
-	}
-}
 
 export const quoteInputSchema = z.object({
 	lines: z.array(quoteLineSchema).min(1, 'Add at least one line.').max(40, 'At most 40 lines.'),
@@ -67,7 +57,7 @@ export async function save(actorId: string, jobId: string, input: QuoteInput): P
 	try {
 		totals = quoteTotals(data.lines, money);
 	} catch (e) {
-		if (e instanceof RangeError) throw new QuoteRuleError('invalid', `The quote was refused: ${e.message}.`);
+		if (e instanceof RangeError) throw new RuleError(400, 'invalid', `The quote was refused: ${e.message}.`);
 		throw e;
 	}
 	const db = await getDb();
@@ -141,19 +131,21 @@ export async function decide(
 	name: string
 ): Promise<Decision> {
 	const typed = customerNameSchema.safeParse(name);
-	if (!typed.success) throw new QuoteRuleError('invalid', typed.error.issues[0].message, 'name');
+	if (!typed.success) throw new RuleError(400, 'invalid', typed.error.issues[0].message, { field: 'name' });
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		await lockJob(tx, jobId);
 		const shown = customerVisible(await listForJob(jobId, tx));
 		if (!shown || shown.id !== quoteId)
-			throw new QuoteRuleError(
+			throw new RuleError(
+				409,
 				'not-open',
 				'This quote has changed since the page was opened. Reload the page to see the current one.'
 			);
 		if (shown.status === decision) return { quote: shown, changed: false };
 		if (shown.status !== 'sent')
-			throw new QuoteRuleError(
+			throw new RuleError(
+				409,
 				'already-decided',
 				`You have already ${shown.status} this quote. To change that, please call the shop.`
 			);

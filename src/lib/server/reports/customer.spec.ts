@@ -1,5 +1,6 @@
 // Over 300 lines on purpose: a spec: the customer link, report and payment end to end.
 import crypto from 'node:crypto';
+import { RuleError } from '$lib/server/errors';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import Stripe from 'stripe';
@@ -9,7 +10,6 @@ import { payments } from '$lib/server/db/schema/payments';
 import { quotes, reportLinks } from '$lib/server/db/schema/quotes';
 import { startFakes, stopFakes } from '$lib/server/fakes';
 import { processWebhook } from '$lib/server/payments/webhook';
-import { PaymentRuleError } from '$lib/server/payments/checkout';
 import { paymentsConfig } from '$lib/server/payments/config';
 import * as staff from '$lib/server/staff/queries';
 import * as jobs from '$lib/server/jobs/queries';
@@ -274,7 +274,7 @@ describe('payment', () => {
 		expect(receipts[0].to).toBe('mara@example.test');
 
 		await expect(startPayment(job.id, q.id, 'rest', '/r/tok')).rejects.toThrow(/already paid in full/);
-		await expect(startPayment(job.id, q.id, 'fee', '/r/tok')).rejects.toThrow(quotesQ.QuoteRuleError);
+		await expect(startPayment(job.id, q.id, 'fee', '/r/tok')).rejects.toThrow(RuleError);
 	});
 
 	it('a confirmed refund takes its amount off what the job kept, but is not owed again', async () => {
@@ -342,7 +342,7 @@ describe('payment', () => {
 		// The same fee again: refused by the checkout (already paid) before any session is opened.
 		await expect(
 			startPayment(job.id, q.id, 'fee', '/r/tok').catch((e) => {
-				throw e instanceof PaymentRuleError || e instanceof quotesQ.QuoteRuleError ? new Error('refused') : e;
+				throw e instanceof RuleError ? new Error('refused') : e;
 			})
 		).rejects.toThrow('refused');
 		const { quote } = await quotesQ.decide(job.id, q.id, 'approved', 'Mara Quillon');

@@ -26,17 +26,9 @@ import { getReport, getShop, shopSchema } from '$lib/server/settings/queries';
 import { settings as settingsTable } from '$lib/server/db/schema/settings';
 import { formatJobNumber } from '$lib/schemas/job';
 import * as quoteQueries from '$lib/server/quotes/queries';
-import { QuoteRuleError, type PaymentKind } from '$lib/server/quotes/queries';
+import type { PaymentKind } from '$lib/server/quotes/queries';
+import { RuleError } from '$lib/server/errors';
 import * as links from './links';
-
-export class ReportRuleError extends Error {
-	constructor(
-		public code: 'not-found' | 'no-email' | 'closed',
-		message: string
-	) {
-		super(message);
-	}
-}
 
 /**
  * The shop's name for a mail. Inside a transaction it must be read through that transaction: on
@@ -77,21 +69,16 @@ async function pageContents(tx: Tx, jobId: string) {
  */
 export async function sendReport(actorId: string, jobId: string) {
 	const [settings, shop] = await Promise.all([getReport(), shopInfo()]);
-	const { transition, lockJob, JobRuleError } = await import('$lib/server/jobs/queries');
+	const { transition, lockJob } = await import('$lib/server/jobs/queries');
 	const db = await getDb();
 	return db.transaction(async (tx) => {
-		let job: Job;
-		try {
-			job = await lockJob(tx, jobId);
-		} catch (e) {
-			if (e instanceof JobRuleError) throw new ReportRuleError('not-found', 'No job with this id.');
-			throw e;
-		}
+		const job: Job = await lockJob(tx, jobId); // 404 'No job with this id.' when there is none
 		if (job.status === 'collected' || job.status === 'cancelled')
-			throw new ReportRuleError('closed', 'This job is closed; its report can no longer be sent.');
+			throw new RuleError(409, 'closed', 'This job is closed; its report can no longer be sent.');
 		const customer = await customerOf(tx, job);
 		if (!customer.email)
-			throw new ReportRuleError(
+			throw new RuleError(
+				409,
 				'no-email',
 				'The customer gave no e-mail address. Print the report for them, or add an address first.'
 			);
@@ -130,14 +117,16 @@ export async function startPayment(jobId: string, quoteId: string, kind: Payment
 	const versions = await quoteQueries.listForJob(jobId);
 	const quote = quoteQueries.customerVisible(versions);
 	if (!quote || quote.id !== quoteId)
-		throw new QuoteRuleError(
+		throw new RuleError(
+			409,
 			'not-open',
 			'This quote has changed since the page was opened. Reload the page.'
 		);
 	const paid = await quoteQueries.receivedForJob(jobId);
 	const option = quoteQueries.paymentOptions(quote, paid).find((o) => o.kind === kind);
 	if (!option)
-		throw new QuoteRuleError(
+		throw new RuleError(
+			409,
 			'nothing-due',
 			paid >= quote.grossMinor
 				? 'This quote is already paid in full.'

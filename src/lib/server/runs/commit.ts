@@ -13,21 +13,13 @@
  */
 import { getDb, type DB } from '$lib/server/db';
 import { record } from '$lib/server/audit';
+import { RuleError } from '$lib/server/errors';
 import { recordRunFinished } from '$lib/server/insights/facts';
 import { dataSecureRefusal } from './data-secure';
 import { planEvent } from '$lib/runs/plan';
 import type { FlowEvent } from '$lib/flows/machine';
 import type { RunEventInput, RunEventResult } from '$lib/runs/types';
-import {
-	eventFacts,
-	isUuid,
-	machineFor,
-	RunRuleError,
-	stateOf,
-	writeStep,
-	type Actor,
-	type StepWrite
-} from './queries';
+import { eventFacts, isUuid, machineFor, stateOf, writeStep, type Actor, type StepWrite } from './queries';
 
 /** How often an event overtaken by another of its run is decided again before giving up. */
 const ATTEMPTS = 8;
@@ -42,7 +34,7 @@ export async function recordEvent(
 	event: RunEventInput,
 	actor: Actor
 ): Promise<RunEventResult> {
-	if (!isUuid(runId)) throw new RunRuleError(404, 'not-found', 'No run with this id.');
+	if (!isUuid(runId)) throw new RuleError(404, 'not-found', 'No run with this id.');
 	const db = await getDb();
 	for (let attempt = 1; ; attempt++) {
 		// PGlite answers on the main thread without real I/O, so events queued behind each other would
@@ -57,12 +49,9 @@ export async function recordEvent(
 		}
 		if (attempt === ATTEMPTS) {
 			const { run } = await eventFacts(db, runId, event.idempotencyKey, false);
-			throw new RunRuleError(
-				409,
-				'stale-step',
-				'This run is changing too fast to answer; reload it.',
-				stateOf(run)
-			);
+			throw new RuleError(409, 'stale-step', 'This run is changing too fast to answer; reload it.', {
+				state: stateOf(run)
+			});
 		}
 	}
 }
@@ -78,18 +67,18 @@ async function decide(
 	const { run } = facts;
 	if (facts.seen) return facts.seen;
 	if (run.status !== 'in-progress')
-		throw new RunRuleError(
+		throw new RuleError(
 			409,
 			'run-finished',
 			run.status === 'completed' ? 'This run has reached its verdict.' : 'This run was abandoned.',
-			stateOf(run)
+			{ state: stateOf(run) }
 		);
 	if (event.stepId !== run.currentStep)
-		throw new RunRuleError(
+		throw new RuleError(
 			409,
 			'stale-step',
 			`This run has moved on: the current step is “${run.currentStep}”, not “${event.stepId}”.`,
-			stateOf(run)
+			{ state: stateOf(run) }
 		);
 
 	const { definition, machine } = await machineFor(db, run.flowVersionId);
@@ -98,11 +87,11 @@ async function decide(
 		revises: facts.last?.seq ?? 0,
 		at: at.toISOString()
 	});
-	if (!planned.ok) throw new RunRuleError(400, 'invalid-event', planned.message);
+	if (!planned.ok) throw new RuleError(400, 'invalid-event', planned.message);
 	const { plan } = planned;
 
 	// Checks of the planned target step (`plan.currentStep`) that can refuse the event go here, before
-	// anything is written: throw a RunRuleError and nothing is written.
+	// anything is written: throw a RuleError and nothing is written.
 	// Data first (./data-secure.ts): held until the job records what became of the data.
 	const held = await dataSecureRefusal(db, run, definition, {
 		from: run.currentStep,
@@ -110,7 +99,7 @@ async function decide(
 		back: event.type === 'BACK',
 		reachable: plan.dataReachable
 	});
-	if (held) throw new RunRuleError(409, 'data-not-secured', held, stateOf(run));
+	if (held) throw new RuleError(409, 'data-not-secured', held, { state: stateOf(run) });
 
 	const next = {
 		snapshot: plan.snapshot,

@@ -20,7 +20,7 @@ import { PUT as putData } from '../../../routes/api/jobs/[id]/data/+server';
 import { actions as jobPage } from '../../../routes/(app)/jobs/[id]/+page.server';
 import * as runs from './queries';
 import { recordEvent } from './commit';
-import { RunRuleError } from './queries';
+import { RuleError } from '$lib/server/errors';
 
 // Real in-memory PGlite (DATA_DIR=memory://). The flow is the data-first fixture
 // (src/lib/flows/data-first-fixture.ts), published from a temporary folder: the shipped flows are
@@ -61,13 +61,13 @@ async function newRun(over: Partial<JobIntake> = {}) {
 const answer = (runId: string, stepId: string, outcome: number) =>
 	recordEvent(runId, { type: 'ANSWER', stepId, outcome, idempotencyKey: key() }, tech);
 
-async function refusal(p: Promise<unknown>): Promise<RunRuleError> {
+async function refusal(p: Promise<unknown>): Promise<RuleError> {
 	const e = await p.then(
 		() => undefined,
 		(err: unknown) => err
 	);
-	expect(e).toBeInstanceOf(RunRuleError);
-	return e as RunRuleError;
+	expect(e).toBeInstanceOf(RuleError);
+	return e as RuleError;
 }
 
 async function stepCount(runId: string) {
@@ -120,7 +120,7 @@ describe('the data-first gate on step events', () => {
 			expect(e.status).toBe(409);
 			expect(e.code).toBe('data-not-secured');
 			expect(e.message).toContain(`“${title}”`);
-			expect(e.state).toMatchObject({ currentStep: 'inspect', status: 'in-progress' });
+			expect(e.details.state).toMatchObject({ currentStep: 'inspect', status: 'in-progress' });
 		}
 		expect(await stepCount(run.id)).toBe(1);
 

@@ -13,7 +13,7 @@ import * as library from '$lib/server/flows/queries';
 import { makeJobIntake, type JobIntake } from '$lib/schemas/job';
 import * as runs from './queries';
 import { recordEvent } from '$lib/server/runs/commit';
-import { RunRuleError } from './queries';
+import { RuleError } from '$lib/server/errors';
 import { toCleanAndDry } from './walks';
 
 // Real in-memory PGlite migrated from drizzle/ (DATA_DIR=memory:// in vite.config.ts). The shipped
@@ -57,13 +57,13 @@ async function stepRows(runId: string) {
 	return db.select().from(runSteps).where(eq(runSteps.runId, runId)).orderBy(runSteps.seq);
 }
 
-async function refusal(p: Promise<unknown>): Promise<RunRuleError> {
+async function refusal(p: Promise<unknown>): Promise<RuleError> {
 	const e = await p.then(
 		() => undefined,
 		(err: unknown) => err
 	);
-	expect(e).toBeInstanceOf(RunRuleError);
-	return e as RunRuleError;
+	expect(e).toBeInstanceOf(RuleError);
+	return e as RuleError;
 }
 
 beforeAll(async () => {
@@ -201,7 +201,7 @@ describe('events', () => {
 		);
 		expect(e.status).toBe(409);
 		expect(e.code).toBe('stale-step');
-		expect(e.state).toMatchObject({ currentStep: 'open-and-disconnect', status: 'in-progress' });
+		expect(e.details.state).toMatchObject({ currentStep: 'open-and-disconnect', status: 'in-progress' });
 		expect(await stepRows(run.id)).toHaveLength(1);
 	});
 
@@ -427,7 +427,7 @@ describe('events that race', () => {
 		const late = [a, b].find((r) => r.status === 'rejected');
 		expect(landed).toHaveLength(1);
 		expect(late?.reason).toMatchObject({ status: 409, code: 'stale-step' });
-		expect((late?.reason as RunRuleError).state?.currentStep).toBe('isolate-other-modules');
+		expect((late?.reason as RuleError).details.state).toMatchObject({ currentStep: 'isolate-other-modules' });
 		const rows = await stepRows(runId);
 		expect(rows.filter((r) => r.kind === 'back')).toHaveLength(1);
 		expect(rows.filter((r) => r.supersededAt !== null).map((r) => r.stepId)).toEqual([

@@ -9,6 +9,7 @@ import { getDb, type DB, type Tx } from '$lib/server/db';
 import { flows, flowVersions, users } from '$lib/server/db/schema';
 import { runs, runSteps, type Run, type StepAnswer } from '$lib/server/db/schema/runs';
 import { record } from '$lib/server/audit';
+import { RuleError } from '$lib/server/errors';
 import { recordRunFinished } from '$lib/server/insights/facts';
 import { noteJob } from './data-secure';
 import * as jobQueries from '$lib/server/jobs/queries';
@@ -19,26 +20,6 @@ import type { FlowDefinition } from '$lib/flows/schema';
 import type { RunEventInput, RunState, RunEventResult, RunDetail, RunSummary } from '$lib/runs/types';
 
 export type { RunEventInput, RunState, RunEventResult, RunDetail, RunSummary };
-
-/** A refusal with the HTTP status the API answers; `state` rides along on a 409. */
-export class RunRuleError extends Error {
-	constructor(
-		public status: 400 | 404 | 409,
-		public code:
-			| 'not-found'
-			| 'no-consent'
-			| 'job-closed'
-			| 'flow-not-published'
-			| 'stale-step'
-			| 'run-finished'
-			| 'invalid-event'
-			| 'data-not-secured',
-		message: string,
-		public state?: RunState
-	) {
-		super(message);
-	}
-}
 
 export type Actor = { id: string };
 
@@ -54,7 +35,7 @@ export async function machineFor(tx: DB | Tx, versionId: string) {
 	const hit = compiled.get(versionId);
 	if (hit) return hit;
 	const [row] = await tx.select().from(flowVersions).where(eq(flowVersions.id, versionId));
-	if (!row) throw new RunRuleError(404, 'not-found', 'The flow version of this run is missing.');
+	if (!row) throw new RuleError(404, 'not-found', 'The flow version of this run is missing.');
 	const definition = withStepOrder(row).definition;
 	const entry = { definition, machine: compileFlow(definition) };
 	if (row.status === 'published' || row.status === 'retired') compiled.set(versionId, entry);
@@ -84,7 +65,7 @@ export function stateOf(run: Run): RunState {
 export async function start(jobId: string, flowId: string, technician: Actor): Promise<Run> {
 	const version = await flowLibrary.currentPublished(flowId);
 	if (!version)
-		throw new RunRuleError(
+		throw new RuleError(
 			400,
 			'flow-not-published',
 			'This flow has no published version (it is retired or still a draft); choose a published flow.'
@@ -92,15 +73,15 @@ export async function start(jobId: string, flowId: string, technician: Actor): P
 	const db = await getDb();
 	const { machine } = await machineFor(db, version.id);
 	return db.transaction(async (tx) => {
-		const job = await lockJobOr404(tx, jobId);
+		const job = await jobQueries.lockJob(tx, jobId);
 		if (!job.consentToOpen)
-			throw new RunRuleError(
+			throw new RuleError(
 				409,
 				'no-consent',
 				'The customer has not consented to opening the phone. Record their consent on the job before starting a run.'
 			);
 		if (job.status === 'collected' || job.status === 'cancelled')
-			throw new RunRuleError(409, 'job-closed', 'This job is closed; a returning phone needs a new job.');
+			throw new RuleError(409, 'job-closed', 'This job is closed; a returning phone needs a new job.');
 		noteJob(job); // data first: a job that is not data-first is never read again for it (./data-secure.ts)
 		const actor = createActor(machine).start();
 		const snapshot = actor.getPersistedSnapshot() as Record<string, unknown>;
@@ -134,20 +115,10 @@ export async function start(jobId: string, flowId: string, technician: Actor): P
 	});
 }
 
-async function lockJobOr404(tx: Tx, jobId: string) {
-	try {
-		return await jobQueries.lockJob(tx, jobId);
-	} catch (e) {
-		if (e instanceof jobQueries.JobRuleError && e.code === 'not-found')
-			throw new RunRuleError(404, 'not-found', 'No job with this id.');
-		throw e;
-	}
-}
-
 /** Takes the run's row lock for the rest of the transaction; 404 for no such run. */
 export async function lockRun(tx: Tx, runId: string): Promise<Run> {
 	const [run] = isUuid(runId) ? await tx.select().from(runs).where(eq(runs.id, runId)).for('update') : [];
-	if (!run) throw new RunRuleError(404, 'not-found', 'No run with this id.');
+	if (!run) throw new RuleError(404, 'not-found', 'No run with this id.');
 	return run;
 }
 
@@ -172,7 +143,7 @@ export async function eventFacts(db: DB | Tx, runId: string, key: string, back: 
 		})
 		.from(runs)
 		.where(eq(runs.id, runId));
-	if (!row) throw new RunRuleError(404, 'not-found', 'No run with this id.');
+	if (!row) throw new RuleError(404, 'not-found', 'No run with this id.');
 	return row;
 }
 
@@ -235,13 +206,13 @@ export async function abandon(runId: string, reason: string, actor: Actor): Prom
 	return db.transaction(async (tx) => {
 		const run = await lockRun(tx, runId);
 		if (run.status !== 'in-progress')
-			throw new RunRuleError(
+			throw new RuleError(
 				409,
 				'run-finished',
 				run.status === 'completed'
 					? 'This run has reached its verdict already.'
 					: 'This run was abandoned already.',
-				stateOf(run)
+				{ state: stateOf(run) }
 			);
 		const now = new Date();
 		const [updated] = await tx

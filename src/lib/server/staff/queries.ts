@@ -1,3 +1,4 @@
+import { RuleError } from '$lib/server/errors';
 import { and, asc, eq, ne, sql } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
 import { users, auditLog, type User } from '$lib/server/db/schema';
@@ -18,16 +19,6 @@ const publicColumns = {
 	createdAt: users.createdAt,
 	updatedAt: users.updatedAt
 };
-
-/** A refusal the UI shows at a field: the change was not made. */
-export class StaffRuleError extends Error {
-	constructor(
-		public field: string,
-		message: string
-	) {
-		super(message);
-	}
-}
 
 export async function findByEmail(email: string) {
 	const db = await getDb();
@@ -97,7 +88,9 @@ export async function create(
 	return staffWrite(() =>
 		db.transaction(async (tx) => {
 			if (await emailTaken(tx, input.email)) {
-				throw new StaffRuleError('email', 'Someone on the staff already uses this e-mail address.');
+				throw new RuleError(400, 'exists', 'Someone on the staff already uses this e-mail address.', {
+					field: 'email'
+				});
 			}
 			const [created] = await tx
 				.insert(users)
@@ -248,7 +241,7 @@ async function emailTaken(tx: Tx, email: string) {
 
 async function lockUser(tx: Tx, id: string) {
 	const [target] = await tx.select(publicColumns).from(users).where(eq(users.id, id)).for('update');
-	if (!target) throw new StaffRuleError('id', 'No staff member with this id.');
+	if (!target) throw new RuleError(400, 'not-found', 'No staff member with this id.', { field: 'id' });
 	return target;
 }
 
@@ -262,9 +255,11 @@ async function assertAnotherActiveLead(tx: Tx, exceptId: string, field: string) 
 		.orderBy(asc(users.id))
 		.for('update');
 	if (others.length === 0) {
-		throw new StaffRuleError(
-			field,
-			'This is the last active shop lead. Make someone else a lead first, so the shop keeps an administrator.'
+		throw new RuleError(
+			400,
+			'last-lead',
+			'This is the last active shop lead. Make someone else a lead first, so the shop keeps an administrator.',
+			{ field }
 		);
 	}
 }

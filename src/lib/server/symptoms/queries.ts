@@ -2,6 +2,7 @@
  * The symptom catalogue: seeding, reading for intake and the library, and seniors' edits (each in
  * one transaction with its audit entry). Jobs store symptom codes; nothing here deletes a row.
  */
+import { RuleError } from '$lib/server/errors';
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { getDb, type Tx } from '$lib/server/db';
 import { flows, flowVersions, jobs, symptoms } from '$lib/server/db/schema';
@@ -9,16 +10,6 @@ import { record } from '$lib/server/audit';
 import { labelFromCode, type CatalogueSymptom } from '$lib/symptoms';
 import type { SymptomAdd, SymptomEdit } from '$lib/schemas/symptom';
 import { OTHER_GROUP, OTHER_SORT, flowFileTags, seedRows } from './seed';
-
-export class SymptomError extends Error {
-	constructor(
-		public code: 'not-found' | 'exists',
-		message: string,
-		public field?: string
-	) {
-		super(message);
-	}
-}
 
 const columns = {
 	code: symptoms.code,
@@ -143,10 +134,11 @@ export async function add(actorId: string, input: SymptomAdd): Promise<Catalogue
 			.onConflictDoNothing()
 			.returning(columns);
 		if (!row)
-			throw new SymptomError(
+			throw new RuleError(
+				409,
 				'exists',
 				`The catalogue already has a symptom with the code “${input.code}”.`,
-				'code'
+				{ field: 'code' }
 			);
 		await record(tx, {
 			actorId,
@@ -165,7 +157,7 @@ export async function update(actorId: string, code: string, input: SymptomEdit):
 	const db = await getDb();
 	return db.transaction(async (tx) => {
 		const [before] = await tx.select(columns).from(symptoms).where(eq(symptoms.code, code)).for('update');
-		if (!before) throw new SymptomError('not-found', `No symptom with the code “${code}”.`);
+		if (!before) throw new RuleError(404, 'not-found', `No symptom with the code “${code}”.`);
 		const changes: Partial<CatalogueSymptom> = {};
 		if (input.label !== before.label) changes.label = input.label;
 		if (input.group !== before.group) {

@@ -3,6 +3,7 @@
  * take; and what a senior reviews, gets back, and should know was overturned. Each function is one
  * short read (the page runs them side by side); the lead's lists are in `lead.ts`.
  */
+import { RuleError } from '$lib/server/errors';
 import { and, desc, eq, gt, inArray, isNotNull, isNull, ne, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { getDb } from '$lib/server/db';
@@ -110,8 +111,6 @@ export async function unassigned(now: Date, limit = 8) {
 	return { rows: byUrgency(rows, now).slice(0, limit), total: rows.length };
 }
 
-export class TakeError extends Error {}
-
 /** Takes an unassigned job for `userId`; refused when someone else took it first. */
 export async function take(jobId: string, userId: string) {
 	const db = await getDb();
@@ -119,11 +118,11 @@ export async function take(jobId: string, userId: string) {
 		const [job] = /^[0-9a-f-]{36}$/i.test(jobId)
 			? await tx.select().from(jobs).where(eq(jobs.id, jobId)).for('update')
 			: [];
-		if (!job) throw new TakeError('That job no longer exists.');
+		if (!job) throw new RuleError(409, 'not-found', 'That job no longer exists.');
 		if (job.technicianId === userId) return job;
 		if (job.technicianId) {
 			const [other] = await tx.select({ name: users.name }).from(users).where(eq(users.id, job.technicianId));
-			throw new TakeError(`${other?.name ?? 'Someone'} took this job first.`);
+			throw new RuleError(409, 'taken', `${other?.name ?? 'Someone'} took this job first.`);
 		}
 		const [updated] = await tx
 			.update(jobs)

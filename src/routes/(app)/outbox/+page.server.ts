@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { getDb } from '$lib/server/db';
 import { mailStatuses } from '$lib/server/db/schema/mail';
 import { requireRole } from '$lib/server/guards';
+import { refusalOf } from '$lib/server/http';
 import { describeSmtpUrl, smtpUrl, usingFakeSmtp } from '$lib/server/mail/config';
 import * as outbox from '$lib/server/mail/outbox';
 import { enqueue } from '$lib/server/mail/queue';
@@ -40,9 +41,8 @@ export const actions: Actions = {
 			await outbox.retryNow(lead.id, parsed.data.id);
 			return { row: { id: parsed.data.id, message: 'Queued again; it goes out within seconds.', ok: true } };
 		} catch (e) {
-			if (e instanceof outbox.OutboxRuleError)
-				return fail(400, { row: { id: parsed.data.id, message: e.message, ok: false } });
-			throw e;
+			const { status, body } = refusalOf(e);
+			return fail(status, { row: { id: parsed.data.id, message: body.message, ok: false } });
 		}
 	},
 

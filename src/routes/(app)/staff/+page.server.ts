@@ -1,8 +1,9 @@
 import { fail } from '@sveltejs/kit';
-import { message, setError, superValidate } from 'sveltekit-superforms';
+import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { z } from 'zod';
 import { requireRole } from '$lib/server/guards';
+import { formFailure, refusalOf } from '$lib/server/http';
 import * as staff from '$lib/server/staff/queries';
 import * as schemas from '$lib/schemas/staff';
 import type { Actions, PageServerLoad } from './$types';
@@ -21,6 +22,10 @@ export const load: PageServerLoad = async (event) => {
 function rowFailure(id: string, status: number, text: string) {
 	return fail(status, { row: { id, message: text, ok: false } });
 }
+const rowRefusal = (id: string, e: unknown) => {
+	const { status, body } = refusalOf(e);
+	return rowFailure(id, status, body.message);
+};
 
 async function parseRow<T extends z.ZodType>(request: Request, schema: T) {
 	const raw = Object.fromEntries(await request.formData());
@@ -47,8 +52,8 @@ export const actions: Actions = {
 				`${created.name} was added. Give them the temporary password; they choose their own at first sign-in.`
 			);
 		} catch (e) {
-			if (e instanceof staff.StaffRuleError) return setError(form, e.field as 'email', e.message);
-			throw e;
+			form.data.password = '';
+			return formFailure(form, e);
 		}
 	},
 
@@ -60,8 +65,7 @@ export const actions: Actions = {
 			const updated = await staff.changeRole(lead.id, parsed.data.id, parsed.data.role);
 			return { row: { id: updated.id, message: `Role changed to ${updated.role}.`, ok: true } };
 		} catch (e) {
-			if (e instanceof staff.StaffRuleError) return rowFailure(parsed.data.id, 400, e.message);
-			throw e;
+			return rowRefusal(parsed.data.id, e);
 		}
 	},
 
@@ -79,8 +83,7 @@ export const actions: Actions = {
 				}
 			};
 		} catch (e) {
-			if (e instanceof staff.StaffRuleError) return rowFailure(parsed.data.id, 400, e.message);
-			throw e;
+			return rowRefusal(parsed.data.id, e);
 		}
 	},
 
@@ -98,8 +101,7 @@ export const actions: Actions = {
 				}
 			};
 		} catch (e) {
-			if (e instanceof staff.StaffRuleError) return rowFailure(parsed.data.id, 400, e.message);
-			throw e;
+			return rowRefusal(parsed.data.id, e);
 		}
 	}
 };

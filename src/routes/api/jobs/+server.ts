@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import * as catalogue from '$lib/server/symptoms/queries';
-import { badRequest, readJson } from '$lib/server/jobs/http';
+import { answer, badRequest, readJson } from '$lib/server/http';
 import { listQueryFrom, makeJobIntake } from '$lib/schemas/job';
 import type { JobCreatedResponse } from '$lib/jobs/api-types';
 import type { RequestHandler } from './$types';
@@ -21,11 +21,13 @@ export const POST: RequestHandler = async (event) => {
 	if (!read.ok) return read.response;
 	const parsed = makeJobIntake((await catalogue.offered()).map((s) => s.code)).safeParse(read.body);
 	if (!parsed.success) return badRequest(parsed.error);
-	const job = await jobs.create(user.id, parsed.data);
-	const body: JobCreatedResponse = {
-		id: job.id,
-		number: job.number,
-		jobNumber: jobs.formatJobNumber(job.number)
-	};
-	return json(body, { status: 201, headers: { location: `/api/jobs/${job.id}` } });
+	return answer(async () => {
+		const job = await jobs.create(user.id, parsed.data);
+		const body: JobCreatedResponse = {
+			id: job.id,
+			number: job.number,
+			jobNumber: jobs.formatJobNumber(job.number)
+		};
+		return json(body, { status: 201, headers: { location: `/api/jobs/${job.id}` } });
+	});
 };

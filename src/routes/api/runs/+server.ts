@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
-import { answer, badRequest, readJson } from '$lib/server/runs/http';
+import { answer, badRequestFirst, readJson } from '$lib/server/http';
 import { runListQuery, runStartInput, type RunListResponse, type RunStartedResponse } from '$lib/schemas/run';
 import type { RequestHandler } from './$types';
 
@@ -11,7 +11,7 @@ export type { RunListResponse, RunStartedResponse };
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
 	const parsed = runListQuery.safeParse({ jobId: event.url.searchParams.get('jobId') ?? '' });
-	if (!parsed.success) return badRequest(parsed.error);
+	if (!parsed.success) return badRequestFirst(parsed.error);
 	return json({ runs: await runs.listForJob(parsed.data.jobId) } satisfies RunListResponse);
 };
 
@@ -21,7 +21,7 @@ export const POST: RequestHandler = async (event) => {
 	const read = await readJson(event.request);
 	if (!read.ok) return read.response;
 	const parsed = runStartInput.safeParse(read.body);
-	if (!parsed.success) return badRequest(parsed.error);
+	if (!parsed.success) return badRequestFirst(parsed.error);
 	return answer(async () => {
 		const run = await runs.start(parsed.data.jobId, parsed.data.flowId, user);
 		const body: RunStartedResponse = {

@@ -7,8 +7,7 @@ import { touch } from '$lib/server/reports/links';
 import * as report from '$lib/server/reports/report';
 import * as quotes from '$lib/server/quotes/queries';
 import { startPayment } from '$lib/server/reports/customer';
-import { PaymentRuleError } from '$lib/server/payments/checkout';
-import { PaymentsNotConfiguredError } from '$lib/server/payments/config';
+import { actionFailure, isRuleError } from '$lib/server/http';
 import type { Actions, PageServerLoad } from './$types';
 
 // Public (allow-listed in guards.spec.ts): the customer has no account. Every handler opens with
@@ -49,14 +48,7 @@ async function decide(event: RequestEvent, link: ReportLink, decision: 'approved
 			message: changed ? `Thank you: the quote is ${words}.` : `You had already ${words} this quote.`
 		};
 	} catch (e) {
-		if (e instanceof quotes.QuoteRuleError)
-			return fail(e.code === 'invalid' ? 400 : 409, {
-				action: decision,
-				ok: false,
-				message: e.message,
-				field: e.field
-			});
-		throw e;
+		return actionFailure(e, { action: decision, ok: false });
 	}
 }
 
@@ -83,15 +75,14 @@ export const actions: Actions = {
 			);
 			return { action: 'pay', ok: true, message: 'Opening the payment page…', checkoutUrl: checkout.url };
 		} catch (e) {
-			if (e instanceof quotes.QuoteRuleError || e instanceof PaymentRuleError)
-				return fail(409, { action: 'pay', ok: false, message: e.message });
-			if (e instanceof PaymentsNotConfiguredError)
+			// The customer is told what they can do, not how the shop's server is set up.
+			if (isRuleError(e, 'payments-not-configured'))
 				return fail(503, {
 					action: 'pay',
 					ok: false,
 					message: 'Online payment is not available at the moment; you can pay at the counter.'
 				});
-			throw e;
+			return actionFailure(e, { action: 'pay', ok: false });
 		}
 	}
 };

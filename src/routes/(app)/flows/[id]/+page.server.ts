@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { kebabId } from '$lib/flows/schema';
 import { hasRole } from '$lib/roles';
 import { requireRole, requireUser } from '$lib/server/guards';
+import { actionFailure } from '$lib/server/http';
 import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as staff from '$lib/server/staff/queries';
@@ -59,11 +60,7 @@ export const actions: Actions = {
 				message: `Version ${retired.version} is retired: no new runs start on it; runs under way finish on it.`
 			};
 		} catch (e) {
-			if (e instanceof authoring.FlowAuthoringError)
-				return fail(e.code === 'not-found' ? 404 : e.code === 'forbidden' ? 403 : 409, {
-					message: e.message
-				});
-			throw e;
+			return actionFailure(e);
 		}
 	}
 };

@@ -2,6 +2,7 @@ import { fail, redirect } from '@sveltejs/kit';
 import { formatPath } from '$lib/flows/check';
 import { MAX_FLOW_CHARS } from '$lib/flows/parse';
 import { requireRole } from '$lib/server/guards';
+import { refusalOf } from '$lib/server/http';
 import * as authoring from '$lib/server/flows/authoring';
 import type { Actions, PageServerLoad } from './$types';
 import { blankForm, MAX_UPLOAD_BYTES } from './schema';
@@ -14,8 +15,8 @@ export const load: PageServerLoad = async (event) => {
 };
 
 type Problem = { where: string | null; line: number | null; message: string };
-const problemsOf = (e: authoring.FlowAuthoringError): Problem[] =>
-	e.problems.map((p) => ({
+const problemsOf = (e: unknown): Problem[] =>
+	authoring.problemsOf(e).map((p) => ({
 		where: p.step ?? (p.path?.length ? formatPath(p.path) : null),
 		line: p.line ?? null,
 		message: p.message
@@ -38,9 +39,8 @@ export const actions: Actions = {
 			draftId = (await authoring.createDraft(user, { definition: newFlow(form.data.id, form.data.title) }))
 				.id;
 		} catch (e) {
-			if (!(e instanceof authoring.FlowAuthoringError)) throw e;
-			const errors: Record<string, string> = { id: e.message };
-			return fail(e.code === 'conflict' ? 409 : 400, { blank: { ...values, errors } });
+			const { status, body } = refusalOf(e);
+			return fail(status, { blank: { ...values, errors: { id: body.message } as Record<string, string> } });
 		}
 		redirect(303, `/flows/${form.data.id}/drafts/${draftId}`);
 	},
@@ -79,11 +79,11 @@ export const actions: Actions = {
 			const { draft, problems } = await authoring.importDraft(user, text);
 			redirect(303, `/flows/${draft.flowId}/drafts/${draft.id}?imported=${problems.length}`);
 		} catch (e) {
-			if (!(e instanceof authoring.FlowAuthoringError)) throw e;
 			// The text comes back in the box below, so nothing is lost: fix it there and import again.
-			return fail(400, {
+			const { status, body } = refusalOf(e);
+			return fail(status, {
 				upload: {
-					message: e.message,
+					message: body.message,
 					text: text.length <= MAX_FLOW_CHARS ? text : '',
 					problems: problemsOf(e)
 				}

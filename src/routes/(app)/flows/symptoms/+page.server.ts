@@ -2,6 +2,7 @@ import { fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { hasRole } from '$lib/roles';
 import { requireRole, requireUser } from '$lib/server/guards';
+import { refusalOf, RuleError } from '$lib/server/http';
 import * as catalogue from '$lib/server/symptoms/queries';
 import * as staff from '$lib/server/staff/queries';
 import { symptomAdd, symptomEdit } from '$lib/schemas/symptom';
@@ -86,13 +87,9 @@ export const actions: Actions = {
 				message: `“${row.label}” is in the catalogue under ${row.group}.`
 			};
 		} catch (e) {
-			if (e instanceof catalogue.SymptomError)
-				return refuse(e.code === 'exists' ? 409 : 404, {
-					form: 'add',
-					values,
-					errors: { [e.field ?? 'form']: e.message }
-				});
-			throw e;
+			const { status, body } = refusalOf(e);
+			const field = e instanceof RuleError ? e.field : undefined;
+			return refuse(status, { form: 'add', values, errors: { [field ?? 'form']: body.message } });
 		}
 	},
 	update: async (event) => {
@@ -114,9 +111,8 @@ export const actions: Actions = {
 				: `“${row.label}” is saved.`;
 			return { form: 'update', saved: row.code, message };
 		} catch (e) {
-			if (e instanceof catalogue.SymptomError)
-				return refuse(404, { form: 'update', code: code.data, values, errors: { form: e.message } });
-			throw e;
+			const { status, body } = refusalOf(e);
+			return refuse(status, { form: 'update', code: code.data, values, errors: { form: body.message } });
 		}
 	}
 };

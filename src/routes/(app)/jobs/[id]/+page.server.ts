@@ -2,6 +2,7 @@ import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
+import { actionFailure } from '$lib/server/http';
 import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from './runs-section';
 import * as symptomCatalogue from '$lib/server/symptoms/queries';
@@ -36,6 +37,7 @@ export const load: PageServerLoad = async (event) => {
 		runs,
 		photos: jobPhotos,
 		customerSide,
+		quoteForm: await quoteActions.quoteFormFor(customerSide),
 		preRepair: { items: preRepairItems, editable: preRepair.preRepairEditable.includes(job.status) }
 	};
 };
@@ -60,9 +62,7 @@ export const actions: Actions = {
 			const job = await jobs.transition(event.params.id, parsed.data.to, user.id, parsed.data.note);
 			return { action: 'status', ok: true, message: `Moved to ${statusLabels[job.status]}.` };
 		} catch (e) {
-			if (e instanceof jobs.JobRuleError)
-				return refused('status', e.code === 'not-found' ? 404 : 409, e.message);
-			throw e;
+			return actionFailure(e, { action: 'status', ok: false });
 		}
 	},
 
@@ -74,9 +74,7 @@ export const actions: Actions = {
 			await jobs.assignTechnician(event.params.id, parsed.data.technicianId || null, user.id);
 			return { action: 'assign', ok: true, message: parsed.data.technicianId ? 'Assigned.' : 'Unassigned.' };
 		} catch (e) {
-			if (e instanceof jobs.JobRuleError)
-				return refused('assign', e.code === 'not-found' ? 404 : 400, e.message);
-			throw e;
+			return actionFailure(e, { action: 'assign', ok: false });
 		}
 	},
 
@@ -91,9 +89,7 @@ export const actions: Actions = {
 			await preRepair.save(event.params.id, parsed.data, user.id);
 			return { action: 'preRepair', ok: true, message: 'Pre-repair test saved.' };
 		} catch (e) {
-			if (e instanceof preRepair.PreRepairRuleError)
-				return refused('preRepair', e.code === 'not-found' ? 404 : 409, e.message);
-			throw e;
+			return actionFailure(e, { action: 'preRepair', ok: false });
 		}
 	},
 
@@ -139,8 +135,7 @@ export const actions: Actions = {
 				message: `Recorded: ${dataOutcomeLabels[job.dataOutcome ?? parsed.data.outcome]}.`
 			};
 		} catch (e) {
-			if (e instanceof jobs.JobRuleError) return refused('dataOutcome', 404, e.message);
-			throw e;
+			return actionFailure(e, { action: 'dataOutcome', ok: false });
 		}
 	},
 
@@ -150,8 +145,7 @@ export const actions: Actions = {
 			await jobs.recordConsent(event.params.id, user.id);
 			return { action: 'consent', ok: true, message: 'Consent to open recorded.' };
 		} catch (e) {
-			if (e instanceof jobs.JobRuleError) return refused('consent', 404, e.message);
-			throw e;
+			return actionFailure(e, { action: 'consent', ok: false });
 		}
 	}
 };

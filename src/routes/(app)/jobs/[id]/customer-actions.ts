@@ -4,48 +4,52 @@ import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import * as quotes from '$lib/server/quotes/queries';
 import { getMoney } from '$lib/server/settings/queries';
-import { parseAmount, parseLines, type RawLine } from '$lib/quotes/input';
+import { formatAmountInput, parseAmount, parseLines } from '$lib/quotes/input';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { quoteForm, rowsOf } from '$lib/schemas/quote';
+import type { QuoteLine } from '$lib/domain/money';
+import type { CustomerSection } from './customer-section';
 import { formatMoney } from '$lib/domain/money';
 import * as refunds from '$lib/server/payments/refunds';
-import { PaymentsNotConfiguredError } from '$lib/server/payments/config';
+import { act, actionFailure } from '$lib/server/http';
 import * as links from '$lib/server/reports/links';
-import { ReportRuleError, sendReport as send } from '$lib/server/reports/customer';
+import { sendReport as send } from '$lib/server/reports/customer';
 
 type User = { id: string };
-const texts = (form: FormData, name: string) =>
-	form.getAll(name).map((v) => (typeof v === 'string' ? v : ''));
+
+const quoteAdapter = (currency: string) => zod4(quoteForm(currency));
+
+/** The quote form as the page opens it: the current version's lines, or a diagnostic fee to price. */
+export async function quoteFormFor(section: CustomerSection) {
+	const quote = section.quote;
+	const currency = quote?.currency ?? section.money.currency;
+	const lines = (quote?.lines ?? []) as QuoteLine[];
+	const data = quote
+		? {
+				description: lines.map((l) => l.description),
+				kind: lines.map((l) => l.kind),
+				quantity: lines.map((l) => String(l.quantity)),
+				unit: lines.map((l) => formatAmountInput(l.unitMinor, currency)),
+				proposal: quote.proposal ?? ''
+			}
+		: { description: ['Diagnosis'], kind: ['fee'], quantity: ['1'], unit: [''], proposal: '' };
+	return superValidate(data, quoteAdapter(section.money.currency), { id: 'quote', errors: false });
+}
 
 export async function saveQuote(event: RequestEvent<{ id: string }>, user: User) {
-	const form = await event.request.formData();
-	const [description, kind, quantity, unit] = ['description', 'kind', 'quantity', 'unit'].map((n) =>
-		texts(form, n)
-	);
-	const raw: RawLine[] = description.map((d, i) => ({
-		description: d,
-		kind: kind[i] ?? '',
-		quantity: quantity[i] ?? '',
-		unit: unit[i] ?? ''
-	}));
 	const money = await getMoney();
-	const parsed = parseLines(raw, money.currency);
-	if (!parsed.ok)
-		return fail(400, {
-			action: 'quote',
-			ok: false,
-			message: parsed.form ?? 'Some lines need a look; see the marked fields.',
-			lineErrors: parsed.errors
+	const form = await superValidate(event.request, quoteAdapter(money.currency), { id: 'quote' });
+	if (!form.valid) return fail(400, { form });
+	return act(form, async () => {
+		const parsed = parseLines(rowsOf(form.data), money.currency);
+		if (!parsed.ok) throw new Error('A quote the form schema passed did not parse.');
+		const saved = await quotes.save(user.id, event.params.id, {
+			lines: parsed.lines,
+			proposal: form.data.proposal
 		});
-	const proposal = String(form.get('proposal') ?? '');
-	if (proposal.length > 5000)
-		return fail(400, { action: 'quote', ok: false, message: 'Keep the proposal under 5000 characters.' });
-	try {
-		const saved = await quotes.save(user.id, event.params.id, { lines: parsed.lines, proposal });
-		return { action: 'quote', ok: true, message: `Quote version ${saved.version} saved.` };
-	} catch (e) {
-		if (e instanceof quotes.QuoteRuleError)
-			return fail(400, { action: 'quote', ok: false, message: e.message });
-		throw e;
-	}
+		return message(form, `Quote version ${saved.version} saved.`);
+	});
 }
 
 export async function sendReport(event: RequestEvent<{ id: string }>, user: User) {
@@ -58,13 +62,7 @@ export async function sendReport(event: RequestEvent<{ id: string }>, user: User
 			url
 		};
 	} catch (e) {
-		if (e instanceof ReportRuleError)
-			return fail(e.code === 'not-found' ? 404 : 409, {
-				action: 'sendReport',
-				ok: false,
-				message: e.message
-			});
-		throw e;
+		return actionFailure(e, { action: 'sendReport', ok: false });
 	}
 }
 
@@ -128,9 +126,6 @@ export async function refund(event: RequestEvent<{ id: string }>, user: User) {
 					: `Refund of ${m} sent; it shows as refunded once the payment service confirms it.`
 		};
 	} catch (e) {
-		if (e instanceof refunds.RefundRuleError)
-			return refused(e.code === 'not-found' ? 404 : e.code === 'service' ? 502 : 400, e.message);
-		if (e instanceof PaymentsNotConfiguredError) return refused(503, e.message);
-		throw e;
+		return actionFailure(e, { action: 'refund', ok: false, paymentId, ...kept });
 	}
 }

@@ -1,6 +1,4 @@
-import type { LineErrors } from '$lib/quotes/input';
-
-/** What a customer-side action on the job page (quote, report, link, payment, refund) answered. */
+/** What a customer-side action on the job page (report, link, payment, refund) answered. */
 export type SideFeedback = {
 	action: string;
 	ok: boolean;
@@ -9,5 +7,4 @@ export type SideFeedback = {
 	paymentId?: string;
 	amount?: string;
 	reason?: string;
-	lineErrors?: Record<number, LineErrors>;
 } | null;

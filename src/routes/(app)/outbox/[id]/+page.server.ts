@@ -2,6 +2,7 @@ import { error, fail } from '@sveltejs/kit';
 import DOMPurify from 'isomorphic-dompurify';
 import { z } from 'zod';
 import { requireRole } from '$lib/server/guards';
+import { actionFailure } from '$lib/server/http';
 import * as outbox from '$lib/server/mail/outbox';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -35,8 +36,7 @@ export const actions: Actions = {
 			await outbox.retryNow(lead.id, id.data);
 			return { message: 'Queued again; it goes out within seconds.', ok: true };
 		} catch (e) {
-			if (e instanceof outbox.OutboxRuleError) return fail(400, { message: e.message, ok: false });
-			throw e;
+			return actionFailure(e, { ok: false });
 		}
 	}
 };

@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { storableJson } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
-import { authoringFailure, draftJson, readJson, type DraftJson } from '$lib/server/flows/http';
+import { draftJson, type DraftJson } from '$lib/server/flows/draft-json';
+import { answer, badRequest, readJson } from '$lib/server/http';
 import type { RequestHandler } from './$types';
 
 export type DraftCreatedResponse = DraftJson;
@@ -16,22 +17,15 @@ const body = z.union([
 /** POST /api/flows/drafts — { fromVersionId } for a draft of a published version, or { definition } for a new flow. */
 export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'senior');
-	const parsed = body.safeParse(await readJson(event.request));
-	if (!parsed.success)
-		return json(
-			{
-				message: 'Send { fromVersionId } or { definition }.',
-				issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }))
-			},
-			{ status: 400 }
-		);
-	try {
+	const read = await readJson(event.request);
+	if (!read.ok) return read.response;
+	const parsed = body.safeParse(read.body);
+	if (!parsed.success) return badRequest(parsed.error, 'Send { fromVersionId } or { definition }.');
+	return answer(async () => {
 		const draft = await authoring.createDraft(user, parsed.data);
 		return json(draftJson(draft) satisfies DraftCreatedResponse, {
 			status: 201,
 			headers: { location: `/api/flows/drafts/${draft.id}` }
 		});
-	} catch (e) {
-		return authoringFailure(e);
-	}
+	});
 };

@@ -1,7 +1,7 @@
 import type { RequestHandler } from './$types';
 import { requireRole } from '$lib/server/guards';
 import * as insights from '$lib/server/insights/queries';
-import { csv, fixed4, insightsEndpoint } from '$lib/server/insights/http';
+import { csv, fixed4, insightsEndpoint } from '$lib/server/insights/endpoint';
 import type { AbandonedResponse } from '$lib/insights/types';
 
 export type { AbandonedResponse };

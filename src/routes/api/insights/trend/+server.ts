@@ -1,7 +1,7 @@
 import type { RequestHandler } from './$types';
 import { requireRole } from '$lib/server/guards';
 import * as insights from '$lib/server/insights/queries';
-import { csv, insightsEndpoint } from '$lib/server/insights/http';
+import { csv, insightsEndpoint } from '$lib/server/insights/endpoint';
 import type { TrendResponse, TrendWeek } from '$lib/insights/types';
 
 export type { TrendResponse };

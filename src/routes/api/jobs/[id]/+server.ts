@@ -1,7 +1,7 @@
 import { error, json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
-import { badRequest, readJson, ruleFailure, type Jsonify } from '$lib/server/jobs/http';
+import { answer, badRequest, readJson, type Jsonify } from '$lib/server/http';
 import { jobPatch } from '$lib/schemas/job';
 import type { RequestHandler } from './$types';
 
@@ -31,13 +31,10 @@ export const PATCH: RequestHandler = async (event) => {
 	}
 	const patch = parsed.data;
 	const id = event.params.id;
-	try {
+	return answer(async () => {
 		if ('status' in patch) await jobs.transition(id, patch.status, user.id, patch.note);
 		else if ('technicianId' in patch) await jobs.assignTechnician(id, patch.technicianId, user.id);
 		else await jobs.recordConsent(id, user.id);
-	} catch (e) {
-		if (e instanceof jobs.JobRuleError) return ruleFailure(e);
-		throw e;
-	}
-	return json(await jobs.get(id));
+		return json(await jobs.get(id));
+	});
 };

@@ -1,13 +1,13 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as photos from '$lib/server/photos/queries';
-import { answer, badRequest, fail } from '$lib/server/photos/http';
+import { answer, badRequestFirst, errorResponse, readJson, RuleError } from '$lib/server/http';
 import { photoId, photoPatch, type PhotoResponse } from '$lib/photos/api';
 import type { RequestHandler } from './$types';
 
 export type { PhotoResponse, PhotoErrorResponse } from '$lib/photos/api';
 
-const notFound = () => fail(404, { message: 'No such photo.', code: 'not-found' });
+const notFound = () => errorResponse(new RuleError(404, 'not-found', 'No such photo.'));
 
 /** GET /api/photos/:id: one photo's record (the image itself is at /photos/:id/:size). */
 export const GET: RequestHandler = async (event) => {
@@ -24,14 +24,10 @@ export const GET: RequestHandler = async (event) => {
 export const PATCH: RequestHandler = async (event) => {
 	const user = requireRole(event, 'technician');
 	if (!photoId.safeParse(event.params.id).success) return notFound();
-	let body: unknown;
-	try {
-		body = await event.request.json();
-	} catch {
-		return fail(400, { message: 'The body must be JSON.', code: 'bad-request' });
-	}
-	const parsed = photoPatch.safeParse(body);
-	if (!parsed.success) return badRequest(parsed.error);
+	const read = await readJson(event.request);
+	if (!read.ok) return read.response;
+	const parsed = photoPatch.safeParse(read.body);
+	if (!parsed.success) return badRequestFirst(parsed.error);
 	return answer(async () =>
 		json({ photo: await photos.update(user, event.params.id, parsed.data) } satisfies PhotoResponse)
 	);

@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
 import type { RunDetail } from '$lib/runs/types';
-import type { RunApiError } from '$lib/server/runs/http';
+import type { ApiError } from '$lib/server/http';
 import type { RequestHandler } from './$types';
 
 export type RunResponse = RunDetail;
@@ -11,6 +11,7 @@ export type RunResponse = RunDetail;
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
 	const run = await runs.get(event.params.id);
-	if (!run) return json({ message: 'No run with this id.' } satisfies RunApiError, { status: 404 });
+	if (!run)
+		return json({ message: 'No run with this id.', code: 'not-found' } satisfies ApiError, { status: 404 });
 	return json(run satisfies RunResponse);
 };

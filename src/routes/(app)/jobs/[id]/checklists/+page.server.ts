@@ -1,14 +1,26 @@
 import { error, fail } from '@sveltejs/kit';
-import { z } from 'zod';
-import { text } from '$lib/schemas/text';
+import { message, setError, superValidate, type Infer } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { requireRole } from '$lib/server/guards';
+import { act } from '$lib/server/http';
 import * as checklists from '$lib/server/checklists/queries';
-import { ChecklistRuleError } from '$lib/server/checklists/queries';
-import type { FunctionTestDef } from '$lib/domain/functionTests';
-import { JobRuleError } from '$lib/server/jobs/queries';
 import { statusLabels } from '$lib/domain/jobStatus';
 import { renderMarkdown } from '$lib/markdown/render';
+import {
+	confirmForm,
+	functionTestForm,
+	noteField,
+	repairForm,
+	resultField,
+	type ChecklistMessage
+} from '$lib/schemas/checklist';
 import type { Actions, PageServerLoad } from './$types';
+
+type Items = checklists.ChecklistView['functionTest'];
+const repairAdapter = zod4(repairForm);
+const confirmAdapter = zod4(confirmForm);
+const functionAdapter = (items: Items) => zod4(functionTestForm(items));
+type FunctionFields = Infer<ReturnType<typeof functionTestForm>>;
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'technician');
@@ -17,111 +29,72 @@ export const load: PageServerLoad = async (event) => {
 		error(404, {
 			message: 'No checklists for this job: they open once a run of the job reaches its verdict.'
 		});
-	// Rendered and sanitised here, so the page ships neither marked nor DOMPurify (as the run screen).
-	return { view, statusLabels, risksHtml: renderMarkdown(view.verdict.risks) };
-};
-
-const repairForm = z.object({ done: z.array(z.string().regex(/^r\d{1,3}$/)).max(200) });
-/** The form for the items this job's device is asked about. */
-const functionForm = (defs: readonly FunctionTestDef[]) =>
-	z.object(
-		Object.fromEntries(
-			defs.map((t) => [
-				t.key,
-				z.object({
-					result: z.enum(['pass', 'fail', 'not-tested']).nullable(),
-					note: text(`The note on ${t.label}`)
-						.trim()
-						.max(500, `Keep the note on ${t.label} under 500 characters.`)
-				})
-			])
-		)
+	const saved = Object.fromEntries(
+		view.functionTest.flatMap((i) => [
+			[resultField(i.key), i.result],
+			[noteField(i.key), i.note]
+		])
 	);
-const confirmForm = z.object({
-	confirmed: z.enum(['yes', 'no'], { error: 'Choose yes or no.' }),
-	note: text('The note').trim().max(2000, 'Keep the note under 2000 characters.')
-});
-
-/** Each action answers `{ action, ok, message, field? }`; the page shows it beside its form. */
-function refused(action: string, status: number, message: string, field?: string) {
-	return fail(status, { action, ok: false, message, field });
-}
-
-/** Rule errors become 400/404 with their message; anything else is a real fault. */
-function ruled(action: string, e: unknown) {
-	if (e instanceof ChecklistRuleError)
-		return refused(action, e.code === 'not-found' ? 404 : 400, e.message, e.field);
-	if (e instanceof JobRuleError) return refused(action, 400, e.message);
-	throw e;
-}
+	const done = view.repair.filter((i) => i.result === 'done').map((i) => i.key);
+	const [repair, functionTest, confirm] = await Promise.all([
+		superValidate({ done }, repairAdapter, { id: 'repair', errors: false }),
+		superValidate(saved, functionAdapter(view.functionTest), { id: 'functionTest', errors: false }),
+		superValidate(confirmAdapter, { id: 'confirm' })
+	]);
+	// Rendered and sanitised here, so the page ships neither marked nor DOMPurify (as the run screen).
+	return {
+		view,
+		statusLabels,
+		risksHtml: renderMarkdown(view.verdict.risks),
+		forms: { repair, functionTest, confirm }
+	};
+};
 
 const movedTo = (to: string | null) =>
 	to ? ` The job is now “${statusLabels[to as keyof typeof statusLabels]}”.` : '';
+const said = (ok: boolean, text: string, held?: string[]): ChecklistMessage => ({ ok, text, held });
 
 export const actions: Actions = {
 	repair: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = await event.request.formData();
-		const parsed = repairForm.safeParse({ done: form.getAll('done') });
-		if (!parsed.success) return refused('repair', 400, 'The repair checklist has changed; reload the page.');
-		try {
-			const r = await checklists.saveRepair(event.params.id, parsed.data.done, user.id);
-			return { action: 'repair', ok: true, message: `Repair checklist saved.${movedTo(r.moved)}` };
-		} catch (e) {
-			return ruled('repair', e);
-		}
+		const form = await superValidate(event.request, repairAdapter, { id: 'repair' });
+		if (!form.valid) return setError(form, '', 'The repair checklist has changed; reload the page.');
+		return act(form, async () => {
+			const r = await checklists.saveRepair(event.params.id, form.data.done, user.id);
+			return message(form, said(true, `Repair checklist saved.${movedTo(r.moved)}`));
+		});
 	},
 	functionTest: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = await event.request.formData();
 		const view = await checklists.forJob(event.params.id);
-		if (!view) return refused('functionTest', 404, 'This job has no run with a verdict yet.');
-		const defs = view.functionTest;
-		const raw = Object.fromEntries(
-			defs.map((t) => [
-				t.key,
-				{ result: form.get(`result-${t.key}`) || null, note: String(form.get(`note-${t.key}`) ?? '') }
+		const items = view?.functionTest ?? [];
+		const form = await superValidate(event.request, functionAdapter(items), { id: 'functionTest' });
+		if (!view) return setError(form, '', 'This job has no run with a verdict yet.', { status: 404 });
+		if (!form.valid) return setError(form, '', 'Some notes need a look; see the marked items.');
+		const data = form.data as FunctionFields;
+		const input: checklists.FunctionTestInput = Object.fromEntries(
+			items.map((i) => [
+				i.key,
+				{
+					result: data[resultField(i.key)] as checklists.FunctionResult | null,
+					note: data[noteField(i.key)] as string
+				}
 			])
 		);
-		const parsed = functionForm(defs).safeParse(raw);
-		if (!parsed.success)
-			return refused('functionTest', 400, parsed.error.issues.map((i) => i.message).join(' '));
-		try {
-			const r = await checklists.saveFunctionTest(
-				event.params.id,
-				parsed.data as checklists.FunctionTestInput,
-				user.id
-			);
-			return {
-				action: 'functionTest',
-				ok: !r.untested?.length,
-				message: `Function test saved.${movedTo(r.moved)}${r.message ? ` ${r.message}` : ''}`,
-				untested: r.untested ?? []
-			};
-		} catch (e) {
-			return ruled('functionTest', e);
-		}
+		return act(form, async () => {
+			const r = await checklists.saveFunctionTest(event.params.id, input, user.id);
+			const text = `Function test saved.${movedTo(r.moved)}${r.message ? ` ${r.message}` : ''}`;
+			return message(form, said(!r.untested?.length, text, r.untested));
+		});
 	},
 	confirm: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = await event.request.formData();
-		const parsed = confirmForm.safeParse({
-			confirmed: form.get('confirmed') ?? undefined,
-			note: String(form.get('note') ?? '')
+		const form = await superValidate(event.request, confirmAdapter, { id: 'confirm' });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const answer = { confirmed: form.data.confirmed === 'yes', note: form.data.note };
+			await checklists.confirmVerdict(event.params.id, answer, user.id);
+			return message(form, said(true, 'Your word on the verdict is recorded.'));
 		});
-		if (!parsed.success) {
-			const issue = parsed.error.issues[0];
-			return refused('confirm', 400, issue.message, String(issue.path[0] ?? ''));
-		}
-		try {
-			await checklists.confirmVerdict(
-				event.params.id,
-				{ confirmed: parsed.data.confirmed === 'yes', note: parsed.data.note },
-				user.id
-			);
-			return { action: 'confirm', ok: true, message: 'Your word on the verdict is recorded.' };
-		} catch (e) {
-			return ruled('confirm', e);
-		}
 	}
 };

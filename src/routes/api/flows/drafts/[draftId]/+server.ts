@@ -4,7 +4,8 @@ import { storableJson, text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
-import { authoringFailure, draftJson, readJson, type DraftJson } from '$lib/server/flows/http';
+import { draftJson, type DraftJson } from '$lib/server/flows/draft-json';
+import { answer, badRequest, readJson, type ApiError } from '$lib/server/http';
 import type { RequestHandler } from './$types';
 
 export type DraftResponse = DraftJson;
@@ -21,7 +22,8 @@ export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'senior');
 	const draftId = id.safeParse(event.params.draftId);
 	const draft = draftId.success ? await flowLibrary.getVersionById(draftId.data) : undefined;
-	if (!draft) return json({ message: 'No such draft.' }, { status: 404 });
+	if (!draft)
+		return json({ message: 'No such draft.', code: 'not-found' } satisfies ApiError, { status: 404 });
 	return json(draftJson(draft) satisfies DraftResponse);
 };
 
@@ -29,21 +31,13 @@ export const GET: RequestHandler = async (event) => {
 export const PUT: RequestHandler = async (event) => {
 	const user = requireRole(event, 'senior');
 	const draftId = id.safeParse(event.params.draftId);
-	if (!draftId.success) return json({ message: 'No such draft.' }, { status: 404 });
-	const parsed = saveBody.safeParse(await readJson(event.request));
-	if (!parsed.success)
-		return json(
-			{
-				message: 'Send { revision, definition }.',
-				issues: parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }))
-			},
-			{ status: 400 }
-		);
-	try {
-		return json(
-			draftJson(await authoring.saveDraft(user, draftId.data, parsed.data)) satisfies DraftResponse
-		);
-	} catch (e) {
-		return authoringFailure(e);
-	}
+	if (!draftId.success)
+		return json({ message: 'No such draft.', code: 'not-found' } satisfies ApiError, { status: 404 });
+	const read = await readJson(event.request);
+	if (!read.ok) return read.response;
+	const parsed = saveBody.safeParse(read.body);
+	if (!parsed.success) return badRequest(parsed.error, 'Send { revision, definition }.');
+	return answer(async () =>
+		json(draftJson(await authoring.saveDraft(user, draftId.data, parsed.data)) satisfies DraftResponse)
+	);
 };

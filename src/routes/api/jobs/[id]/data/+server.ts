@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as jobs from '$lib/server/jobs/queries';
 import { recordDataOutcome } from '$lib/server/jobs/data-outcome';
-import { badRequest, readJson, ruleFailure } from '$lib/server/jobs/http';
+import { answer, badRequest, readJson } from '$lib/server/http';
 import { dataOutcomeInput } from '$lib/schemas/data-outcome';
 import type { RequestHandler } from './$types';
 
@@ -17,11 +17,8 @@ export const PUT: RequestHandler = async (event) => {
 	if (!read.ok) return read.response;
 	const parsed = dataOutcomeInput.safeParse(read.body);
 	if (!parsed.success) return badRequest(parsed.error, parsed.error.issues[0]?.message);
-	try {
+	return answer(async () => {
 		await recordDataOutcome(event.params.id, parsed.data, user.id);
-	} catch (e) {
-		if (e instanceof jobs.JobRuleError) return ruleFailure(e);
-		throw e;
-	}
-	return json(await jobs.get(event.params.id));
+		return json(await jobs.get(event.params.id));
+	});
 };

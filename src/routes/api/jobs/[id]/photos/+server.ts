@@ -1,17 +1,19 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as photos from '$lib/server/photos/queries';
-import { answer, badRequest, fail, readUpload, store } from '$lib/server/photos/http';
+import { answer, badRequestFirst, errorResponse, RuleError } from '$lib/server/http';
+import { readUpload, store } from '$lib/server/photos/upload';
 import { photoId, photoUploadFields, type PhotoListResponse } from '$lib/photos/api';
 import type { RequestHandler } from './$types';
 
 export type { PhotoListResponse, PhotoUploadResponse, PhotoErrorResponse } from '$lib/photos/api';
 
+const notFound = () => errorResponse(new RuleError(404, 'not-found', 'No such job.'));
+
 /** GET /api/jobs/:id/photos: every photo of the job, run photos included, oldest first. */
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
-	if (!photoId.safeParse(event.params.id).success)
-		return fail(404, { message: 'No such job.', code: 'not-found' });
+	if (!photoId.safeParse(event.params.id).success) return notFound();
 	return json({ photos: await photos.listForJob(event.params.id) } satisfies PhotoListResponse);
 };
 
@@ -22,11 +24,10 @@ export const GET: RequestHandler = async (event) => {
  */
 export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'technician');
-	if (!photoId.safeParse(event.params.id).success)
-		return fail(404, { message: 'No such job.', code: 'not-found' });
+	if (!photoId.safeParse(event.params.id).success) return notFound();
 	const upload = await readUpload(event);
 	if (!upload.ok) return upload.response;
 	const fields = photoUploadFields.safeParse(upload.fields);
-	if (!fields.success) return badRequest(fields.error);
+	if (!fields.success) return badRequestFirst(fields.error);
 	return answer(() => store(user.id, { jobId: event.params.id }, upload.file, fields.data));
 };

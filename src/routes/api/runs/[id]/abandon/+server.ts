@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as runs from '$lib/server/runs/queries';
-import { answer, badRequest, readJson } from '$lib/server/runs/http';
+import { answer, badRequestFirst, readJson } from '$lib/server/http';
 import { runAbandonInput, type RunAbandonedResponse } from '$lib/schemas/run';
 import type { RequestHandler } from './$types';
 
@@ -13,7 +13,7 @@ export const POST: RequestHandler = async (event) => {
 	const read = await readJson(event.request);
 	if (!read.ok) return read.response;
 	const parsed = runAbandonInput.safeParse(read.body);
-	if (!parsed.success) return badRequest(parsed.error);
+	if (!parsed.success) return badRequestFirst(parsed.error);
 	return answer(async () => {
 		const run = await runs.abandon(event.params.id, parsed.data.reason, user);
 		return json({

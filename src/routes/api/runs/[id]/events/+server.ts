@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import { recordEvent } from '$lib/server/runs/commit';
-import { answer, badRequest, readJson, type RunApiError } from '$lib/server/runs/http';
+import { answer, badRequestFirst, readJson, type ApiError } from '$lib/server/http';
 import { claim, keyReusedMessage } from '$lib/server/idempotency';
 import { runEventInput } from '$lib/schemas/run';
 import type { RunEventResult } from '$lib/runs/types';
@@ -23,10 +23,10 @@ export const POST: RequestHandler = async (event) => {
 	const read = await readJson(event.request);
 	if (!read.ok) return read.response;
 	const parsed = runEventInput.safeParse(read.body);
-	if (!parsed.success) return badRequest(parsed.error);
+	if (!parsed.success) return badRequestFirst(parsed.error);
 	const key = await claim(`run-event:${event.params.id}`, parsed.data.idempotencyKey, parsed.data);
 	if (key.status === 'different')
-		return json({ message: keyReusedMessage, code: 'key-reused' } satisfies RunApiError, { status: 422 });
+		return json({ message: keyReusedMessage, code: 'key-reused' } satisfies ApiError, { status: 422 });
 	return answer(async () => {
 		try {
 			const result = await recordEvent(event.params.id, parsed.data, user);

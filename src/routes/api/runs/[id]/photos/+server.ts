@@ -1,19 +1,21 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import * as photos from '$lib/server/photos/queries';
-import { answer, badRequest, fail, readUpload, store } from '$lib/server/photos/http';
+import { answer, badRequestFirst, errorResponse, RuleError } from '$lib/server/http';
+import { readUpload, store } from '$lib/server/photos/upload';
 import { photoId, runPhotoListQuery, runPhotoUploadFields, type PhotoListResponse } from '$lib/photos/api';
 import type { RequestHandler } from './$types';
 
 export type { PhotoListResponse, PhotoUploadResponse, PhotoErrorResponse } from '$lib/photos/api';
 
+const notFound = () => errorResponse(new RuleError(404, 'not-found', 'No such run.'));
+
 /** GET /api/runs/:id/photos[?stepId=…]: the run's photos (of one step when asked), oldest first. */
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'technician');
-	if (!photoId.safeParse(event.params.id).success)
-		return fail(404, { message: 'No such run.', code: 'not-found' });
+	if (!photoId.safeParse(event.params.id).success) return notFound();
 	const query = runPhotoListQuery.safeParse({ stepId: event.url.searchParams.get('stepId') ?? undefined });
-	if (!query.success) return badRequest(query.error);
+	if (!query.success) return badRequestFirst(query.error);
 	const list = await photos.listForRun(event.params.id, query.data.stepId);
 	return json({ photos: list } satisfies PhotoListResponse);
 };
@@ -25,12 +27,11 @@ export const GET: RequestHandler = async (event) => {
  */
 export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'technician');
-	if (!photoId.safeParse(event.params.id).success)
-		return fail(404, { message: 'No such run.', code: 'not-found' });
+	if (!photoId.safeParse(event.params.id).success) return notFound();
 	const upload = await readUpload(event);
 	if (!upload.ok) return upload.response;
 	const fields = runPhotoUploadFields.safeParse(upload.fields);
-	if (!fields.success) return badRequest(fields.error);
+	if (!fields.success) return badRequestFirst(fields.error);
 	return answer(async () => {
 		const target = await photos.runTarget(event.params.id, fields.data.stepId);
 		return store(user.id, target, upload.file, fields.data);

@@ -8,7 +8,7 @@ import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as staff from '$lib/server/staff/queries';
 import type { Actions, PageServerLoad } from './$types';
-import { FlowAuthoringError, statusOf } from './errors';
+import { actionFailure } from '$lib/server/http';
 import { draftParams } from './schema';
 
 async function draftOf(params: unknown) {
@@ -77,8 +77,7 @@ export const actions: Actions = {
 		try {
 			await authoring.submit({ id: user.id, role: user.role }, draft.id);
 		} catch (e) {
-			if (!(e instanceof FlowAuthoringError)) throw e;
-			return fail(statusOf(e), { message: e.message, problems: e.problems.length });
+			return actionFailure(e, { problems: authoring.problemsOf(e).length });
 		}
 		redirect(303, `/flows/${draft.flowId}?submitted=1`);
 	},
@@ -89,8 +88,7 @@ export const actions: Actions = {
 		try {
 			version = (await authoring.approve({ id: user.id, role: user.role }, draft.id)).version;
 		} catch (e) {
-			if (!(e instanceof FlowAuthoringError)) throw e;
-			return fail(statusOf(e), { message: e.message, problems: e.problems.length });
+			return actionFailure(e, { problems: authoring.problemsOf(e).length });
 		}
 		redirect(303, `/flows/${draft.flowId}?published=${version}`);
 	},
@@ -102,8 +100,7 @@ export const actions: Actions = {
 		try {
 			await authoring.sendBack({ id: user.id, role: user.role }, draft.id, form.data.comment);
 		} catch (e) {
-			if (!(e instanceof FlowAuthoringError)) throw e;
-			return fail(statusOf(e), { message: e.message, comment: form.data.comment, problems: 0 });
+			return actionFailure(e, { comment: form.data.comment, problems: 0 });
 		}
 		redirect(303, `/flows/${draft.flowId}?sentBack=1`);
 	}

@@ -3,7 +3,7 @@ import type { FlowDefinition } from '$lib/flows/schema';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
 import type { RequestHandler } from './$types';
-import { FlowAuthoringError, statusOf } from './errors';
+import { refusalOf } from '$lib/server/http';
 import { draftParams, MAX_SAVE_BYTES, saveBody } from './schema';
 
 /** The editor's autosave answers. */
@@ -41,20 +41,18 @@ export const PUT: RequestHandler = async (event) => {
 		const saved = await authoring.saveDraft({ id: user.id, role: user.role }, params.data.draftId, body.data);
 		return json({ revision: saved.revision } satisfies SaveResponse);
 	} catch (e) {
-		if (!(e instanceof FlowAuthoringError)) throw e;
-		const current =
-			e.code === 'conflict' && e.current
-				? { revision: e.current.revision, definition: e.current.definition, by: null }
-				: undefined;
+		// The editor reads its own shape: the conflicting draft's revision and definition, and the
+		// flow's problems as issues.
+		const { status, body: refusal } = refusalOf(e);
+		const now = authoring.currentOf(e);
+		const problems = authoring.problemsOf(e);
 		return json(
 			{
-				message: e.message,
-				...(current && { current }),
-				...(e.problems.length && {
-					issues: e.problems.map((p) => ({ path: p.path, message: p.message }))
-				})
+				message: refusal.message,
+				...(now && { current: { revision: now.revision, definition: now.definition, by: null } }),
+				...(problems.length && { issues: problems.map((p) => ({ path: p.path, message: p.message })) })
 			} satisfies SaveResponse,
-			{ status: statusOf(e) }
+			{ status }
 		);
 	}
 };

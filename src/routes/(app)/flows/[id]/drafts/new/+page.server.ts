@@ -1,7 +1,8 @@
-import { error, fail, redirect } from '@sveltejs/kit';
+import { error, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { kebabId } from '$lib/flows/schema';
 import { requireRole } from '$lib/server/guards';
+import { actionFailure } from '$lib/server/http';
 import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import type { Actions, PageServerLoad } from './$types';
@@ -53,8 +54,7 @@ export const actions: Actions = {
 			draftId = (await authoring.createDraft({ id: user.id, role: user.role }, { fromVersionId: version.id }))
 				.id;
 		} catch (e) {
-			if (e instanceof authoring.FlowAuthoringError) return fail(409, { message: e.message });
-			throw e;
+			return actionFailure(e);
 		}
 		redirect(303, `/flows/${version.flowId}/drafts/${draftId}${stepQuery(event.url, version)}`);
 	}

@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
 import * as authoring from '$lib/server/flows/authoring';
-import { authoringFailure, draftJson, readJson, type DraftJson } from '$lib/server/flows/http';
+import { draftJson, type DraftJson } from '$lib/server/flows/draft-json';
+import { answer, badRequest, readJson, type ApiError } from '$lib/server/http';
 import type { RequestHandler } from './$types';
 
 export type DraftActionResponse = DraftJson;
@@ -17,26 +18,20 @@ const sendBackBody = z.object({
 export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'senior');
 	const p = params.safeParse(event.params);
-	if (!p.success) return json({ message: 'No such draft action.' }, { status: 404 });
-	try {
-		const { draftId, action } = p.data;
+	if (!p.success)
+		return json({ message: 'No such draft action.', code: 'not-found' } satisfies ApiError, { status: 404 });
+	const { draftId, action } = p.data;
+	return answer(async () => {
 		if (action === 'submit')
 			return json(draftJson(await authoring.submit(user, draftId)) satisfies DraftActionResponse);
 		if (action === 'approve')
 			return json(draftJson(await authoring.approve(user, draftId)) satisfies DraftActionResponse);
-		const body = sendBackBody.safeParse(await readJson(event.request));
-		if (!body.success)
-			return json(
-				{
-					message: body.error.issues[0].message,
-					issues: body.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }))
-				},
-				{ status: 400 }
-			);
+		const read = await readJson(event.request);
+		if (!read.ok) return read.response;
+		const body = sendBackBody.safeParse(read.body);
+		if (!body.success) return badRequest(body.error, 'Say what needs changing.', { lead: 'first-issue' });
 		return json(
 			draftJson(await authoring.sendBack(user, draftId, body.data.comment)) satisfies DraftActionResponse
 		);
-	} catch (e) {
-		return authoringFailure(e);
-	}
+	});
 };

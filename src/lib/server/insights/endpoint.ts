@@ -1,9 +1,8 @@
+// The /api/insights/* endpoints' common shape: filters through zod, JSON or a CSV table.
 import { json } from '@sveltejs/kit';
 import { stringify } from 'csv-stringify/sync';
 import { insightFilters, paramsObject, type InsightFilters } from '$lib/insights/types';
 import { issuesOf, type ApiError } from '$lib/server/http';
-
-export type InsightsApiError = ApiError;
 
 /** The query string through zod: the filters, or a 400 JSON answer naming the bad parameter. */
 export function parseFilters(
@@ -18,8 +17,9 @@ export function parseFilters(
 		response: json(
 			{
 				message: first ? `${first.path || 'query'}: ${first.message}` : 'Bad query parameters.',
+				code: 'bad-request',
 				issues
-			} satisfies InsightsApiError,
+			} satisfies ApiError,
 			{ status: 400 }
 		)
 	};
@@ -27,7 +27,7 @@ export function parseFilters(
 
 /** A 400 for a `table=` that the endpoint does not have. */
 export function unknownTable(tables: readonly string[]) {
-	return json({ message: `table: choose one of ${tables.join(', ')}.` } satisfies InsightsApiError, {
+	return json({ message: `table: choose one of ${tables.join(', ')}.` } satisfies ApiError, {
 		status: 400
 	});
 }

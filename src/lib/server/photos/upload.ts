@@ -1,34 +1,10 @@
+// Reading a photo upload and storing it: the multipart parsing shared by the job and run photo routes.
 import { json, type RequestEvent } from '@sveltejs/kit';
-import type { z } from 'zod';
 import { MAX_PHOTO_BYTES, formatBytes } from '$lib/photos/limits';
 import type { PhotoErrorResponse, PhotoUploadResponse } from '$lib/photos/api';
 import * as photos from './queries';
-import { PhotoRejected, PhotoRuleError } from './queries';
 
-export function fail(status: number, body: PhotoErrorResponse) {
-	return json(body, { status });
-}
-
-export function badRequest(error: z.ZodError) {
-	const issues = error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message }));
-	return fail(400, {
-		message: issues[0]?.message ?? 'The request needs attention.',
-		code: 'bad-request',
-		issues
-	});
-}
-
-/** Turns a refusal into its JSON answer; anything else is a real fault and goes on up. */
-export async function answer(work: () => Promise<Response>): Promise<Response> {
-	try {
-		return await work();
-	} catch (e) {
-		if (e instanceof PhotoRejected || e instanceof PhotoRuleError) {
-			return fail(e.status, { message: e.message, code: e.code });
-		}
-		throw e;
-	}
-}
+const fail = (status: number, body: PhotoErrorResponse) => json(body, { status });
 
 // Room for the multipart envelope and the text fields around the file.
 const envelopeSlack = 64 * 1024;
