@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one spec of the run lifecycle, each case building on the same small shop.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';

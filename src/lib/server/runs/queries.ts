@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: the run queries (start, abandon, reads, and the step event's read and write) share one table pair and its types.
 /**
  * Guided runs: a technician walks one pinned flow version for one job. These are the run queries:
  * start, abandon, read, and the reads and writes a step event makes; the event itself is decided in
