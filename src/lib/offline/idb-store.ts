@@ -1,0 +1,43 @@
+import { openDB, type DBSchema } from 'idb';
+import { byOrder, memoryStore, type Base, type Entry, type OutboxStore } from './outbox';
+
+interface OutboxDb extends DBSchema {
+	entries: { key: string; value: Entry; indexes: { runId: string } };
+	bases: { key: string; value: Base };
+}
+
+const open = () =>
+	openDB<OutboxDb>('tidemark-outbox', 1, {
+		upgrade(db) {
+			const entries = db.createObjectStore('entries', { keyPath: 'id' });
+			entries.createIndex('runId', 'runId');
+			db.createObjectStore('bases', { keyPath: 'runId' });
+		}
+	});
+
+/** The outbox in IndexedDB (photos as Blobs, which it stores natively); in memory without it. */
+export async function openStore(): Promise<OutboxStore> {
+	if (typeof indexedDB === 'undefined') return memoryStore();
+	const db = await open();
+	return {
+		list: async (runId) => (await db.getAllFromIndex('entries', 'runId', runId)).sort(byOrder),
+		put: async (e) => void (await db.put('entries', e)),
+		remove: async (id) => db.delete('entries', id),
+		all: async () => (await db.getAll('entries')).sort(byOrder),
+		getBase: (runId) => db.get('bases', runId),
+		putBase: async (b) => void (await db.put('bases', b))
+	};
+}
+
+let shared: Promise<OutboxStore> | undefined;
+/** One store per page; a failure to open (private mode, quota) falls back to memory. */
+export function getStore(): Promise<OutboxStore> {
+	shared ??= openStore().catch(() => memoryStore());
+	return shared;
+}
+
+/** Forgets the confirmed copies of runs (sign-out on a shared tablet); waiting entries stay. */
+export async function forgetBases() {
+	if (typeof indexedDB === 'undefined') return;
+	await (await open()).clear('bases');
+}
