@@ -30,8 +30,12 @@ export async function openStore(): Promise<OutboxStore> {
 }
 
 let shared: Promise<OutboxStore> | undefined;
-/** One store per page; a failure to open (private mode, quota) falls back to memory. */
+/**
+ * One store per page; a failure to open (private mode, quota) falls back to memory. Without
+ * IndexedDB each caller gets its own memory store: it lives as long as the screen that holds it.
+ */
 export function getStore(): Promise<OutboxStore> {
+	if (typeof indexedDB === 'undefined') return Promise.resolve(memoryStore());
 	shared ??= openStore().catch(() => memoryStore());
 	return shared;
 }
