@@ -80,6 +80,5 @@ sw.addEventListener('fetch', (event) => {
 	if (runPagePath.test(path) && !url.search) return event.respondWith(networkFirst(request, path));
 	if (photoPath.test(path) && /\/runs\//.test(request.referrer))
 		return event.respondWith(cacheFirst(RUN_CACHE, request, path, true));
-	if (request.mode === 'navigate')
-		event.respondWith(fetch(request).catch(() => offlinePage()));
+	if (request.mode === 'navigate') event.respondWith(fetch(request).catch(() => offlinePage()));
 });

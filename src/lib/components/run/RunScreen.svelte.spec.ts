@@ -177,7 +177,10 @@ describe('RunScreen', () => {
 			onresync: vi.fn()
 		});
 		expect(await screen.findByRole('heading', { name: 'Photos of this step' })).toBeInTheDocument();
-		expect(await screen.findByTestId('photo-camera-input', {}, { timeout: 8000 })).toHaveAttribute('capture', 'environment');
+		expect(await screen.findByTestId('photo-camera-input', {}, { timeout: 8000 })).toHaveAttribute(
+			'capture',
+			'environment'
+		);
 		const past = await screen.findByTestId('past-runs');
 		expect(past).toHaveTextContent('History, not advice');
 		expect(past).toHaveTextContent('No fault found');

@@ -2,7 +2,16 @@ import { compileFlow } from '$lib/flows/machine';
 import { planEvent } from '$lib/runs/plan';
 import type { RunDetail, RunEventInput, RunEventResult } from '$lib/runs/types';
 import type { PhotoDto } from '$lib/photos/limits';
-import { byOrder, drain, nextOrder, redo, seqOf, type Entry, type OutboxStore, type Sent } from '$lib/offline/outbox';
+import {
+	byOrder,
+	drain,
+	nextOrder,
+	redo,
+	seqOf,
+	type Entry,
+	type OutboxStore,
+	type Sent
+} from '$lib/offline/outbox';
 import { getStore } from '$lib/offline/idb-store';
 import { appendRecord, flowEventOf } from '$lib/offline/standing';
 import { newKey } from './keys';
@@ -171,7 +180,7 @@ export class RunOutbox {
 		if (this.#pumping) return;
 		this.#pumping = true;
 		try {
-			for (let attempt = 0; this.mine.some((e) => !e.held); ) {
+			for (let attempt = 0; this.mine.some((e) => !e.held);) {
 				const store = await this.#store;
 				await this.#writes;
 				const pass = () => drain(store, this.runId, this.userId, this.#hooks);
