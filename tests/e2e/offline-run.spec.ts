@@ -88,7 +88,8 @@ test('a run goes on without a connection, survives a reload, and is stored in or
 	await shot(page, 'offline-waiting');
 
 	// A reload without a connection: the kept page, then this device's answers on top of it.
-	await page.reload();
+	const reloaded = await page.reload();
+	expect(reloaded?.fromServiceWorker()).toBe(true);
 	await ready(page);
 	await expect(title(page)).toHaveText('A front sensor line is shorted to ground on the board');
 	await expect(page.getByTestId('connection')).toHaveText('Offline');
