@@ -5,7 +5,7 @@ import { createJob, signIn, startRun } from './helpers';
 // The run screen through a dropped connection (issue 15), on the shipped restart-loop flow
 // (flows/restart-loop-after-liquid.flow.yaml; titles and labels quoted from it). The service
 // worker runs only in the built app, which these journeys use. OFFLINE_SHOTS=<folder> also saves
-// screenshots of each state at tablet width in both themes.
+// screenshots of each state as a tablet shows it (820 × 1180), in both themes.
 test.use({ viewport: { width: 820, height: 1180 } });
 
 const flow = 'restart-loop-after-liquid';
@@ -22,10 +22,11 @@ async function shot(page: Page, name: string) {
 			document.documentElement.classList.toggle('dark', d);
 			document.documentElement.classList.toggle('light', !d);
 		}, dark);
+	await page.evaluate(() => scrollTo(0, 0));
 	await theme(false);
-	await page.screenshot({ path: `${dir}/${name}-light.png`, fullPage: true });
+	await page.screenshot({ path: `${dir}/${name}-light.png`, fullPage: false });
 	await theme(true);
-	await page.screenshot({ path: `${dir}/${name}-dark.png`, fullPage: true });
+	await page.screenshot({ path: `${dir}/${name}-dark.png`, fullPage: false });
 	await theme(false);
 }
 

@@ -20,7 +20,10 @@ export const photoPath = /^\/photos\/[0-9a-f-]{36}\/(thumb|display)$/;
 export async function keepRunPage(path: string) {
 	if (typeof caches === 'undefined' || !navigator.onLine) return;
 	const cache = await caches.open(RUN_CACHE);
-	if (!(await cache.match(path))) await cache.add(path);
+	if (await cache.match(path)) return;
+	const response = await fetch(path);
+	// A redirect (to sign-in) is not the run page: keep nothing rather than the wrong page.
+	if (response.ok && !response.redirected) await cache.put(path, response);
 }
 
 /** A finished or abandoned run needs no offline copy. */

@@ -73,7 +73,8 @@ function stubFetch(
 	);
 }
 
-describe('RunScreen', () => {
+// Generous: the photo and history sections load as separate chunks, slow on a busy machine.
+describe('RunScreen', { timeout: 20_000 }, () => {
 	it('moves on at once and posts the event with a fresh idempotency key', async () => {
 		const fetchMock = vi.fn().mockResolvedValue(ok(1, 'check'));
 		stubFetch(fetchMock);

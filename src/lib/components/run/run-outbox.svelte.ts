@@ -12,7 +12,6 @@ import {
 	type OutboxStore,
 	type Sent
 } from '$lib/offline/outbox';
-import { getStore } from '$lib/offline/idb-store';
 import { appendRecord, flowEventOf } from '$lib/offline/standing';
 import { newKey } from './keys';
 
@@ -46,7 +45,7 @@ export class RunOutbox {
 	readonly runId: string;
 	readonly userId: string;
 	readonly machine;
-	#store: Promise<OutboxStore>;
+	#opened: Promise<OutboxStore> | undefined;
 	#channel: BroadcastChannel | undefined;
 	#pumping = false;
 	#wake: (() => void) | undefined;
@@ -62,7 +61,11 @@ export class RunOutbox {
 		this.runId = run.id;
 		this.userId = userId;
 		this.machine = compileFlow(run.flow.definition);
-		this.#store = getStore();
+	}
+
+	/** Opened on first use in the browser: the IndexedDB code is not part of the first paint (bench/runs). */
+	get #store() {
+		return (this.#opened ??= import('$lib/offline/idb-store').then((m) => m.getStore()));
 	}
 
 	get mine() {
