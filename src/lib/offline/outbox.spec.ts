@@ -1,15 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import {
-	drain,
-	heldAfterRefusal,
-	memoryStore,
-	nextOrder,
-	oldestAge,
-	redo,
-	type Entry,
-	type EventEntry,
-	type Sent
-} from './outbox';
+import { drain, heldAfterRefusal, type Sent } from './replay';
+import { memoryStore, nextOrder, oldestAge, redo, type Entry, type EventEntry } from './outbox';
 
 const run = 'run-1';
 const me = 'tech-1';

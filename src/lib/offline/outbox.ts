@@ -2,7 +2,8 @@
  * The run screen's outbox: what the technician entered that the server has not stored yet, kept in
  * the browser (IndexedDB through ./idb-store.ts; in memory where there is none) so a dropped
  * connection or a reload loses nothing. Isomorphic and free of Svelte, so the replay rules are
- * unit-tested on their own (outbox.spec.ts).
+ * unit-tested on their own (outbox.spec.ts). The replay itself is in ./replay.ts, loaded when
+ * there is something to send.
  *
  * What it promises:
  * - Entries are sent one at a time in the order they were made (`order`), each with the key it
@@ -76,59 +77,6 @@ export function memoryStore(): OutboxStore {
 		getBase: async (runId) => bases.get(runId),
 		putBase: async (b) => void bases.set(b.runId, b)
 	};
-}
-
-/** How one attempt went: stored, try again later, or refused with the server's words. */
-export type Sent =
-	| { ok: true; body: unknown }
-	| { ok: false; retry: true }
-	| { ok: false; retry: false; status: number; message: string };
-
-export type DrainHooks = {
-	send: (entry: Entry) => Promise<Sent>;
-	/** The server stored `entry`; called after it left the store. */
-	onsent: (entry: Entry, body: unknown) => void | Promise<void>;
-	/** The server refused `entry`; `held` are the entries now waiting for the technician. */
-	onrefused?: (entry: Entry, held: Entry[]) => void | Promise<void>;
-};
-
-export const heldAfterRefusal = 'Not sent: it was answered after an answer the server refused.';
-
-/**
- * One pass over the run's waiting entries, in order. Returns 'retry' when the connection (or the
- * server) failed and entries remain, 'done' otherwise. The list is read afresh, so an entry another
- * tab sent meanwhile is not sent again (and if it were, its key makes the server answer the same).
- */
-export async function drain(
-	store: OutboxStore,
-	runId: string,
-	userId: string,
-	hooks: DrainHooks
-): Promise<'done' | 'retry'> {
-	const entries = (await store.list(runId)).filter((e) => e.userId === userId);
-	const heldNow = new Set<string>();
-	for (const entry of entries) {
-		if (entry.held || heldNow.has(entry.id)) continue;
-		const result = await hooks.send(entry);
-		if (result.ok) {
-			await store.remove(entry.id);
-			await hooks.onsent(entry, result.body);
-			continue;
-		}
-		if (result.retry) return 'retry';
-		const refusal = { status: result.status, message: result.message };
-		const held: Entry[] = [{ ...entry, held: refusal }];
-		if (entry.kind === 'event')
-			for (const later of entries)
-				if (later.kind === 'event' && !later.held && later.order > entry.order)
-					held.push({ ...later, held: { status: result.status, message: heldAfterRefusal } });
-		for (const h of held) {
-			heldNow.add(h.id);
-			await store.put(h);
-		}
-		await hooks.onrefused?.(entry, held);
-	}
-	return 'done';
 }
 
 /** Puts a held entry back in the queue, as the newest, with a fresh key (the refused one is spent). */

@@ -2,16 +2,7 @@ import { compileFlow } from '$lib/flows/machine';
 import { planEvent } from '$lib/runs/plan';
 import type { RunDetail, RunEventInput, RunEventResult } from '$lib/runs/types';
 import type { PhotoDto } from '$lib/photos/limits';
-import {
-	byOrder,
-	drain,
-	nextOrder,
-	redo,
-	seqOf,
-	type Entry,
-	type OutboxStore,
-	type Sent
-} from '$lib/offline/outbox';
+import { byOrder, nextOrder, redo, seqOf, type Entry, type OutboxStore } from '$lib/offline/outbox';
 import { appendRecord, flowEventOf } from '$lib/offline/standing';
 import { newKey } from './keys';
 
@@ -184,7 +175,7 @@ export class RunOutbox {
 		this.#pumping = true;
 		try {
 			for (let attempt = 0; this.mine.some((e) => !e.held);) {
-				const store = await this.#store;
+				const [store, { drain }] = await Promise.all([this.#store, import('$lib/offline/replay')]);
 				await this.#writes;
 				const pass = () => drain(store, this.runId, this.userId, this.#hooks);
 				const result = navigator.locks
@@ -207,28 +198,9 @@ export class RunOutbox {
 	}
 
 	#hooks = {
-		send: async (entry: Entry): Promise<Sent> => {
+		send: async (entry: Entry) => {
 			this.sending = true;
-			let res: Response;
-			try {
-				res = await fetch(
-					`/api/runs/${this.runId}/${entry.kind === 'event' ? 'events' : 'photos'}`,
-					entry.kind === 'event'
-						? {
-								method: 'POST',
-								headers: { 'content-type': 'application/json' },
-								body: JSON.stringify(entry.body)
-							}
-						: { method: 'POST', headers: { accept: 'application/json' }, body: photoForm(entry) }
-				);
-			} catch {
-				return { ok: false, retry: true };
-			}
-			// A server fault or an expired sign-in is not the run's answer: keep it and try again.
-			if (res.status >= 500 || res.status === 401) return { ok: false, retry: true };
-			const body = (await res.json().catch(() => ({}))) as { message?: string };
-			if (res.ok) return { ok: true, body };
-			return { ok: false, retry: false, status: res.status, message: body.message ?? res.statusText };
+			return (await import('$lib/offline/replay')).sendEntry(this.runId, entry);
 		},
 		onsent: (entry: Entry, body: unknown) => {
 			this.entries = this.entries.filter((e) => e.id !== entry.id);
@@ -280,13 +252,4 @@ export class RunOutbox {
 			// Offline again: the held answers stay; the base is refreshed on the next refusal or reload.
 		}
 	}
-}
-
-function photoForm(entry: Extract<Entry, { kind: 'photo' }>) {
-	const form = new FormData();
-	form.set('file', new File([entry.file], entry.name, { type: entry.file.type }));
-	form.set('stepId', entry.stepId);
-	form.set('source', entry.source);
-	if (entry.caption) form.set('caption', entry.caption);
-	return form;
 }
