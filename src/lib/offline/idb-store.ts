@@ -1,5 +1,21 @@
 import { openDB, type DBSchema } from 'idb';
-import { byOrder, memoryStore, type Base, type Entry, type OutboxStore } from './outbox';
+import type { Base, Entry, OutboxStore } from './outbox';
+
+export const byOrder = (a: Entry, b: Entry) => a.order - b.order || a.id.localeCompare(b.id);
+
+/** The outbox in memory: where there is no IndexedDB, and in tests. */
+export function memoryStore(): OutboxStore {
+	const entries = new Map<string, Entry>();
+	const bases = new Map<string, Base>();
+	return {
+		list: async (runId) => [...entries.values()].filter((e) => e.runId === runId).sort(byOrder),
+		put: async (e) => void entries.set(e.id, e),
+		remove: async (id) => void entries.delete(id),
+		all: async () => [...entries.values()].sort(byOrder),
+		getBase: async (runId) => bases.get(runId),
+		putBase: async (b) => void bases.set(b.runId, b)
+	};
+}
 
 interface OutboxDb extends DBSchema {
 	entries: { key: string; value: Entry; indexes: { runId: string } };

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { drain, heldAfterRefusal, type Sent } from './replay';
-import { memoryStore, nextOrder, oldestAge, redo, type Entry, type EventEntry } from './outbox';
+import { drain, heldAfterRefusal, redo, type Sent } from './replay';
+import { memoryStore } from './idb-store';
+import { nextOrder, oldestAge, type Entry, type EventEntry } from './outbox';
 
 const run = 'run-1';
 const me = 'tech-1';

@@ -54,8 +54,6 @@ export interface OutboxStore {
 	putBase(base: Base): Promise<void>;
 }
 
-export const byOrder = (a: Entry, b: Entry) => a.order - b.order || a.id.localeCompare(b.id);
-
 let last = 0;
 /** A send order after every one handed out before in this page, even within one millisecond. */
 export function nextOrder(now = Date.now()): number {
@@ -65,29 +63,6 @@ export function nextOrder(now = Date.now()): number {
 
 /** The highest step number the run's trail holds: which of two copies of a run is newer. */
 export const seqOf = (run: Pick<RunDetail, 'steps'>) => run.steps.reduce((m, s) => Math.max(m, s.seq), 0);
-
-export function memoryStore(): OutboxStore {
-	const entries = new Map<string, Entry>();
-	const bases = new Map<string, Base>();
-	return {
-		list: async (runId) => [...entries.values()].filter((e) => e.runId === runId).sort(byOrder),
-		put: async (e) => void entries.set(e.id, e),
-		remove: async (id) => void entries.delete(id),
-		all: async () => [...entries.values()].sort(byOrder),
-		getBase: async (runId) => bases.get(runId),
-		putBase: async (b) => void bases.set(b.runId, b)
-	};
-}
-
-/** Puts a held entry back in the queue, as the newest, with a fresh key (the refused one is spent). */
-export function redo(entry: Entry, key: string): Entry {
-	const { held: _held, ...rest } = entry;
-	void _held;
-	const order = nextOrder();
-	if (rest.kind === 'event')
-		return { ...rest, id: key, order, queuedAt: Date.now(), body: { ...rest.body, idempotencyKey: key } };
-	return { ...rest, id: key, order, queuedAt: Date.now() };
-}
 
 /** The oldest waiting entry's age in ms (held ones count: they wait too), or 0. */
 export function oldestAge(entries: readonly Entry[], now = Date.now()): number {

@@ -2,7 +2,7 @@
  * The outbox's replay (see ./outbox.ts for what it promises): one pass over a run's waiting
  * entries, in order, and how one entry goes to the server. Loaded only when something waits.
  */
-import { type Entry, type OutboxStore } from './outbox';
+import { nextOrder, type Entry, type OutboxStore } from './outbox';
 
 /** How one attempt went: stored, try again later, or refused with the server's words. */
 export type Sent =
@@ -88,4 +88,14 @@ function photoForm(entry: Extract<Entry, { kind: 'photo' }>) {
 	form.set('source', entry.source);
 	if (entry.caption) form.set('caption', entry.caption);
 	return form;
+}
+
+/** Puts a held entry back in the queue, as the newest, with a fresh key (the refused one is spent). */
+export function redo(entry: Entry, key: string): Entry {
+	const { held: _held, ...rest } = entry;
+	void _held;
+	const order = nextOrder();
+	if (rest.kind === 'event')
+		return { ...rest, id: key, order, queuedAt: Date.now(), body: { ...rest.body, idempotencyKey: key } };
+	return { ...rest, id: key, order, queuedAt: Date.now() };
 }

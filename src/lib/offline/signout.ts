@@ -1,3 +1,5 @@
+import { mount, unmount } from 'svelte';
+import SignOutUnsent from '$lib/components/SignOutUnsent.svelte';
 import { getStore, forgetBases } from './idb-store';
 import { forgetRunPages } from './caches';
 
@@ -17,4 +19,21 @@ export async function countUnsent(userId: string) {
  */
 export async function forgetDevice() {
 	await Promise.allSettled([forgetRunPages(), forgetBases()]);
+}
+
+/**
+ * Signs out (`go`) at once when nothing waits; otherwise asks first, and signs out only when the
+ * technician says so. The kept pages are forgotten either way before leaving.
+ */
+export async function confirmSignOut(userId: string, go: () => void) {
+	const leave = async () => {
+		await forgetDevice();
+		go();
+	};
+	const unsent = await countUnsent(userId).catch(() => ({ answers: 0, photos: 0 }));
+	if (unsent.answers + unsent.photos === 0) return leave();
+	const dialog = mount(SignOutUnsent, {
+		target: document.body,
+		props: { unsent, onstay: () => void unmount(dialog), onleave: leave }
+	});
 }
