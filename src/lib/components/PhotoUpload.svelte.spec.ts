@@ -148,7 +148,7 @@ describe('PhotoUpload', () => {
 
 	it('without a connection keeps a photo on the device through `queue`, after the size check', async () => {
 		vi.stubGlobal('navigator', { ...navigator, onLine: false });
-		const queue = vi.fn().mockResolvedValue(undefined);
+		const queue = vi.fn().mockResolvedValue(true);
 		render(PhotoUpload, { url: '/api/runs/r/photos', queue });
 		await userEvent.upload(screen.getByTestId('photo-file-input'), [
 			jpeg('board.jpg'),
@@ -165,7 +165,7 @@ describe('PhotoUpload', () => {
 	});
 
 	it('a lost connection mid-upload hands the photo to `queue` instead of failing', async () => {
-		const queue = vi.fn().mockResolvedValue(undefined);
+		const queue = vi.fn().mockResolvedValue(true);
 		render(PhotoUpload, { url: '/api/runs/r/photos', queue });
 		await userEvent.upload(screen.getByTestId('photo-file-input'), jpeg());
 		FakeXhr.sent[0].onerror?.();

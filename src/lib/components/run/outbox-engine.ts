@@ -80,9 +80,11 @@ export class OutboxEngine {
 
 	/** Writes an entry the outbox already shows, then sends what waits. */
 	async persist(entry: Entry) {
-		await this.#write((s) => s.put(entry));
+		let kept = true;
+		await this.#write((s) => s.put(entry).catch((e) => ((kept = false), Promise.reject(e))));
 		this.#o.unwritten.delete(entry.id);
 		void this.pump();
+		return kept;
 	}
 
 	redo(entry: Entry) {

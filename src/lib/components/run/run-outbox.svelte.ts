@@ -82,7 +82,7 @@ export class RunOutbox {
 		});
 	}
 
-	/** Queues a photo (already checked against the size limit) until it can be uploaded. */
+	/** Queues a photo (already checked against the size limit); false if this device could not keep it. */
 	pushPhoto(file: File, fields: { stepId: string; source: 'phone' | 'microscope'; caption: string }) {
 		return this.#push({
 			kind: 'photo',
