@@ -122,7 +122,7 @@ test('a senior drafts, breaks and fixes a flow, the lead approves it, new runs u
 	await expect(tech.getByRole('heading', { level: 1 })).toHaveText(OLD_TITLE);
 	await tech.getByRole('button', { name: /Sound and microphones work after the basics/ }).click();
 	await expect(tech.getByRole('heading', { level: 1 })).toHaveText('Sound works after the basics');
-	await expect(tech.getByTestId('save-state')).toHaveText('Saved');
+	await expect(tech.getByTestId('save-state')).toHaveText('All saved');
 	const done = await (await tech.request.get(`/api/runs/${earlier}`)).json();
 	expect(done).toMatchObject({ status: 'completed', flow: { id: FLOW, version: 1 } });
 	expect(await (await tech.request.get(`/api/runs/${later}`)).json()).toMatchObject({

@@ -76,7 +76,7 @@ test('a technician goes from a verdict through the checklists; the job status fo
 	await expect(title(page)).toHaveText('Isolation test with the other modules, one at a time');
 	await page.keyboard.press('1'); // Boots to the lock screen with one module unplugged
 	await expect(title(page)).toHaveText(VERDICT);
-	await expect(page.getByTestId('save-state')).toHaveText('Saved');
+	await expect(page.getByTestId('save-state')).toHaveText('All saved');
 
 	// From the verdict straight to the checklists.
 	await page.getByRole('link', { name: /repair and function-test checklists/ }).click();

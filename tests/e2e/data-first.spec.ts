@@ -75,7 +75,7 @@ test('a data-first run asks for the data to be secured before the hot-air step; 
 	await expect(title(page)).toHaveText('Inspect the board under the microscope');
 	const panel = page.getByTestId('data-secure');
 	await expect(panel.getByRole('heading', { name: 'Secure the customer’s data' })).toBeVisible();
-	await expect(page.getByTestId('save-state')).toHaveText('Saved');
+	await expect(page.getByTestId('save-state')).toHaveText('All saved');
 	await lookAt(page, 'data-secure-panel', 'data-secure');
 
 	// The hot-air step waits: the answer is held on the screen, and the server refuses it too.
@@ -101,7 +101,7 @@ test('a data-first run asks for the data to be secured before the hot-air step; 
 	await expect(title(page)).toHaveText('Lift the corroded part with hot air');
 	await page.getByRole('button', { name: /Part replaced/ }).click();
 	await expect(title(page)).toHaveText('Part replaced on the board');
-	await expect(page.getByTestId('save-state')).toHaveText('Saved');
+	await expect(page.getByTestId('save-state')).toHaveText('All saved');
 
 	await page.goto(`/jobs/${jobId}`);
 	await expect(page.getByTestId('job-data-outcome')).toContainText('Backed up');

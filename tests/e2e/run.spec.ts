@@ -44,7 +44,7 @@ async function startFromJob(page: Page, jobId: string) {
 const title = (page: Page) => page.getByRole('heading', { level: 1 });
 /** The run screen is server-rendered; wait until it is hydrated before typing or clicking. */
 const ready = (page: Page) => expect(page.locator('[data-ready="true"]')).toBeVisible();
-const saved = (page: Page) => expect(page.getByTestId('save-state')).toHaveText('Saved');
+const saved = (page: Page) => expect(page.getByTestId('save-state')).toHaveText('All saved');
 
 test('a technician runs the restart-loop flow from a job, with keys, buttons, Back and a reload, to a verdict', async ({
 	page

@@ -145,4 +145,31 @@ describe('PhotoUpload', () => {
 		FakeXhr.sent[0].onerror?.();
 		expect(await screen.findByRole('alert')).toHaveTextContent(/did not reach the server/);
 	});
+
+	it('without a connection keeps a photo on the device through `queue`, after the size check', async () => {
+		vi.stubGlobal('navigator', { ...navigator, onLine: false });
+		const queue = vi.fn().mockResolvedValue(true);
+		render(PhotoUpload, { url: '/api/runs/r/photos', queue });
+		await userEvent.upload(screen.getByTestId('photo-file-input'), [
+			jpeg('board.jpg'),
+			jpeg('huge.jpg', MAX_PHOTO_BYTES + 1)
+		]);
+		await waitFor(() => expect(queue).toHaveBeenCalledOnce());
+		expect(queue.mock.calls[0][0].name).toBe('board.jpg');
+		expect(FakeXhr.sent).toHaveLength(0);
+		const items = screen.getAllByTestId('upload-item');
+		expect(items[0]).toHaveAttribute('data-state', 'queued');
+		expect(items[0]).toHaveTextContent('Waiting to upload');
+		expect(items[1]).toHaveAttribute('data-state', 'failed'); // over the limit: never queued
+		expect(items[1]).toHaveTextContent(/over the 15\.0 MB limit/);
+	});
+
+	it('a lost connection mid-upload hands the photo to `queue` instead of failing', async () => {
+		const queue = vi.fn().mockResolvedValue(true);
+		render(PhotoUpload, { url: '/api/runs/r/photos', queue });
+		await userEvent.upload(screen.getByTestId('photo-file-input'), jpeg());
+		FakeXhr.sent[0].onerror?.();
+		await waitFor(() => expect(queue).toHaveBeenCalledOnce());
+		expect(screen.getByTestId('upload-item')).toHaveAttribute('data-state', 'queued');
+	});
 });

@@ -43,7 +43,12 @@ export const shopSettingsForm = z.object({
 		.number({ error: 'Enter a number of backups.' })
 		.int('A whole number.')
 		.min(1, 'Keep at least one.')
-		.max(365, 'At most 365.')
+		.max(365, 'At most 365.'),
+	queueWarnHours: z
+		.number({ error: 'Enter a number of hours.' })
+		.int('Whole hours.')
+		.min(1, 'At least one hour.')
+		.max(168, 'At most 168 hours (a week).')
 });
 export type ShopSettingsForm = z.infer<typeof shopSettingsForm>;
 

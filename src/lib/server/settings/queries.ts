@@ -119,3 +119,23 @@ const backupDefaults: BackupSettings = { everyHours: 24, keep: 14 };
 
 export const getBackups = () => readKey('backups', backupSettingsSchema, backupDefaults);
 export const setBackups = (value: BackupSettings) => writeKey('backups', backupSettingsSchema.parse(value));
+
+// ── The run screen without a connection (lead, /settings; the run page reads it) ────────────────
+
+/**
+ * Answers and photos waiting on a tablet longer than `queueWarnHours` raise a warning on the run
+ * screen. Default 24 h: a shift and a night, long enough for a dropped Wi-Fi to come back and short
+ * enough to be noticed the next working day (common practice, no published source).
+ */
+export const offlineSettingsSchema = z.object({
+	queueWarnHours: z
+		.number()
+		.int('Whole hours.')
+		.min(1, 'At least one hour.')
+		.max(168, 'At most 168 hours (a week).')
+});
+export type OfflineSettings = z.infer<typeof offlineSettingsSchema>;
+const offlineDefaults: OfflineSettings = { queueWarnHours: 24 };
+
+export const getOffline = () => readKey('offline', offlineSettingsSchema, offlineDefaults);
+export const setOffline = (value: OfflineSettings) => writeKey('offline', offlineSettingsSchema.parse(value));

@@ -11,13 +11,14 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'lead');
-	const [shop, money, report, workflow, backup, recentBackups] = await Promise.all([
+	const [shop, money, report, workflow, backup, recentBackups, offline] = await Promise.all([
 		settings.getShop(),
 		settings.getMoney(),
 		settings.getReport(),
 		settings.getWorkflow(),
 		settings.getBackups(),
-		backups.recent(5)
+		backups.recent(5),
+		settings.getOffline()
 	]);
 	const form = await superValidate(
 		{
@@ -30,7 +31,8 @@ export const load: PageServerLoad = async (event) => {
 			turnaroundDays: workflow.turnaroundDays,
 			quoteWaitHours: workflow.quoteWaitHours,
 			backupEveryHours: backup.everyHours,
-			backupKeep: backup.keep
+			backupKeep: backup.keep,
+			queueWarnHours: offline.queueWarnHours
 		},
 		zod4(shopSettingsForm)
 	);
@@ -54,6 +56,7 @@ export const actions: Actions = {
 		await settings.setReport({ linkLifetimeDays: d.linkLifetimeDays, terms: d.terms });
 		await settings.setWorkflow({ turnaroundDays: d.turnaroundDays, quoteWaitHours: d.quoteWaitHours });
 		await settings.setBackups({ everyHours: d.backupEveryHours, keep: d.backupKeep });
+		await settings.setOffline({ queueWarnHours: d.queueWarnHours });
 		await record(await getDb(), {
 			actorId: lead.id,
 			action: 'settings.update',
@@ -65,7 +68,8 @@ export const actions: Actions = {
 				turnaroundDays: d.turnaroundDays,
 				quoteWaitHours: d.quoteWaitHours,
 				backupEveryHours: d.backupEveryHours,
-				backupKeep: d.backupKeep
+				backupKeep: d.backupKeep,
+				queueWarnHours: d.queueWarnHours
 			}
 		});
 		return message(form, 'Settings saved. New quotes use them; quotes already saved keep their own.');
