@@ -23,10 +23,8 @@ export type DataOutcomeInput = z.infer<typeof dataOutcomeInput>;
  * enum, so no choice is pre-selected (superforms would fill an enum with its first option).
  */
 export const dataOutcomeForm = z.object({
-	outcome: z
-		.string()
-		.refine((v) => (dataOutcomes as readonly string[]).includes(v), {
-			error: 'Choose what became of the data: backed up, customer declined, or not possible.'
-		}),
+	outcome: z.string().refine((v) => (dataOutcomes as readonly string[]).includes(v), {
+		error: 'Choose what became of the data: backed up, customer declined, or not possible.'
+	}),
 	note: dataOutcomeInput.shape.note.default('')
 });

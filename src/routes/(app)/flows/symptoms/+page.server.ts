@@ -23,14 +23,17 @@ export const load: PageServerLoad = async (event) => {
 	const editForms = canEdit
 		? Object.fromEntries(
 				await Promise.all(
-					usage.map(async (s) => [
-						s.code,
-						await superValidate(
-							{ code: s.code, label: s.label, group: s.group, retired: s.retired },
-							editAdapter,
-							{ id: editId(s.code), errors: false }
-						)
-					] as const)
+					usage.map(
+						async (s) =>
+							[
+								s.code,
+								await superValidate(
+									{ code: s.code, label: s.label, group: s.group, retired: s.retired },
+									editAdapter,
+									{ id: editId(s.code), errors: false }
+								)
+							] as const
+					)
 				)
 			)
 		: {};

@@ -82,7 +82,11 @@ describe('the symptom catalogue page', () => {
 		expect(
 			await add(sena, { code: 'Speaker-Rattle', label: 'Loudspeaker rattles', group: 'Sound and voice' })
 		).toMatchObject({
-			form: { valid: true, data: { code: 'speaker-rattle' }, message: expect.stringContaining('Sound and voice') }
+			form: {
+				valid: true,
+				data: { code: 'speaker-rattle' },
+				message: expect.stringContaining('Sound and voice')
+			}
 		});
 		const added = (await catalogue.catalogue()).find((s) => s.code === 'speaker-rattle')!;
 		expect(added).toMatchObject({ label: 'Loudspeaker rattles', group: 'Sound and voice', retired: false });
@@ -105,7 +109,9 @@ describe('the symptom catalogue page', () => {
 			group: 'Buttons and body',
 			retired: 'on'
 		});
-		expect(retired).toMatchObject({ form: { id: 'symptom-speaker-rattle', message: expect.stringContaining('retired') } });
+		expect(retired).toMatchObject({
+			form: { id: 'symptom-speaker-rattle', message: expect.stringContaining('retired') }
+		});
 		expect(await auditOf('speaker-rattle')).toEqual(['symptom.add', 'symptom.update', 'symptom.retire']);
 		const [renamed] = await (
 			await getDb()
@@ -124,7 +130,9 @@ describe('the symptom catalogue page', () => {
 	it('refuses bad input with field messages and the values back, and a duplicate code with 409', async () => {
 		type Refused = {
 			status: number;
-			data: { form: { data: Record<string, string>; errors: Record<string, string[]> & { _errors?: string[] } } };
+			data: {
+				form: { data: Record<string, string>; errors: Record<string, string[]> & { _errors?: string[] } };
+			};
 		};
 		const bad = (await add(sena, { code: 'no power!', label: 'x', group: 'Care' })) as Refused;
 		expect(bad.status).toBe(400);
@@ -138,7 +146,11 @@ describe('the symptom catalogue page', () => {
 		expect(badEdit.status).toBe(400);
 		expect(badEdit.data.form.errors.label?.[0]).toMatch(/few words/);
 		expect(badEdit.data.form.data).toMatchObject({ code: 'vibration', label: 'x', group: 'Care' });
-		const missing = (await update(sena, { code: 'no-such-code', label: 'Nothing', group: 'Care' })) as Refused;
+		const missing = (await update(sena, {
+			code: 'no-such-code',
+			label: 'Nothing',
+			group: 'Care'
+		})) as Refused;
 		expect(missing.data.form.errors._errors?.[0]).toBeTruthy();
 		expect(missing.status).toBe(404);
 	});

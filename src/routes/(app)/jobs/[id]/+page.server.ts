@@ -53,9 +53,7 @@ export const load: PageServerLoad = async (event) => {
 
 // A string with a check, not an enum: superforms would fill a missing enum with its first status.
 const statusForm = z.object({
-	to: z
-		.string()
-		.refine((v) => jobStatusSchema.safeParse(v).success, 'Choose a status.'),
+	to: z.string().refine((v) => jobStatusSchema.safeParse(v).success, 'Choose a status.'),
 	note: text('The note').trim().max(1000, 'Keep the note under 1000 characters.').default('')
 });
 const assignForm = z.object({
@@ -79,7 +77,12 @@ export const actions: Actions = {
 		const form = await superValidate(event.request, statusAdapter, { id: 'status' });
 		if (!form.valid) return fail(400, { form });
 		return act(form, async () => {
-			const job = await jobs.transition(event.params.id, jobStatusSchema.parse(form.data.to), user.id, form.data.note);
+			const job = await jobs.transition(
+				event.params.id,
+				jobStatusSchema.parse(form.data.to),
+				user.id,
+				form.data.note
+			);
 			return message(form, `Moved to ${statusLabels[job.status]}.`);
 		});
 	},
