@@ -25,6 +25,15 @@ test('a senior adds a symptom, a technician books a job with it, the library cou
 	await expect(row).toContainText('0 jobs');
 	await expect(row).toContainText('no flow yet');
 	await expect(senior.getByText(`added ${code}`)).toBeVisible();
+	// A row's own form: a refusal keeps the typed label beside its message; a good save says so.
+	await row.getByText(`Change “${label}”`).click();
+	await row.getByLabel('Label').fill('x');
+	await row.getByRole('button', { name: 'Save' }).click();
+	await expect(row.getByText('Write what the customer or the technician sees')).toBeVisible();
+	await expect(row.getByLabel('Label')).toHaveValue('x');
+	await row.getByLabel('Label').fill(label);
+	await row.getByRole('button', { name: 'Save' }).click();
+	await expect(senior.getByRole('status')).toContainText(`“${label}” is saved.`);
 	await senior.close();
 
 	const tech = await browser.newPage();

@@ -17,3 +17,14 @@ export const dataOutcomeInput = z.object({
 	runId: z.uuid('The run id must be a UUID.').optional()
 });
 export type DataOutcomeInput = z.infer<typeof dataOutcomeInput>;
+
+/**
+ * The job page's record form, as superforms validates it: the outcome a string with a check, not an
+ * enum, so no choice is pre-selected (superforms would fill an enum with its first option).
+ */
+export const dataOutcomeForm = z.object({
+	outcome: z.string().refine((v) => (dataOutcomes as readonly string[]).includes(v), {
+		error: 'Choose what became of the data: backed up, customer declined, or not possible.'
+	}),
+	note: dataOutcomeInput.shape.note.default('')
+});

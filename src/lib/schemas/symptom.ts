@@ -28,10 +28,14 @@ export const symptomAdd = z.object({
 });
 export type SymptomAdd = z.infer<typeof symptomAdd>;
 
-/** A change to an entry: label, group and whether it is retired (no longer offered at intake). */
+/**
+ * A change to an entry: which one (its code, posted hidden), label, group and whether it is retired
+ * (no longer offered at intake). A plain boolean: superforms reads a ticked checkbox as true.
+ */
 export const symptomEdit = z.object({
+	code: z.string().trim().min(1, 'Choose a symptom to change.').max(60, 'Choose a symptom to change.'),
 	label,
 	group,
-	retired: z.preprocess((v) => v === true || v === 'on' || v === 'true', z.boolean())
+	retired: z.boolean().default(false)
 });
 export type SymptomEdit = z.infer<typeof symptomEdit>;

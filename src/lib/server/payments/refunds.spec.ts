@@ -260,6 +260,12 @@ describe('refunds through the SDK, the local fake and the signed webhook', () =>
 });
 
 describe('the job page’s refund action', () => {
+	type Refused = {
+		status: number;
+		data: { form: { data: Record<string, string>; errors: Record<string, string[] | undefined> } };
+	};
+	/** The refusal's sentence: beside the amount, or under the form. */
+	const said = (r: Refused) => r.data.form.errors.amount?.[0] ?? r.data.form.errors._errors?.[0];
 	const event = (role: 'lead' | 'technician', jobId: string, form: Record<string, string>) =>
 		({
 			locals: { user: { id: role === 'lead' ? leadId : techId, role } },
@@ -287,12 +293,9 @@ describe('the job page’s refund action', () => {
 		const p = await paid(jobId, 1000);
 		setFakePayments(null);
 		try {
-			const r = (await actions.refund(event('lead', jobId, { paymentId: p.id, amount: '5' }))) as {
-				status: number;
-				data: Record<string, unknown>;
-			};
+			const r = (await actions.refund(event('lead', jobId, { paymentId: p.id, amount: '5' }))) as Refused;
 			expect(r.status).toBe(503);
-			expect(r.data.message).toMatch(/^Payments are not set up/);
+			expect(said(r)).toMatch(/^Payments are not set up/);
 		} finally {
 			const { secretKey, webhookSecret, host, port } = fake;
 			setFakePayments({ secretKey, webhookSecret, endpoint: { host, port, protocol: 'http' } });
@@ -312,11 +315,11 @@ describe('the job page’s refund action', () => {
 			['1.234', 'At most 2 decimals.'],
 			['25.01', 'At most €25.00 can be refunded: €25.00 paid, €0.00 refunded.']
 		]) {
-			const r = (await run(amount)) as { status: number; data: Record<string, unknown> };
-			expect(r.data).toMatchObject({ action: 'refund', ok: false, amount, reason: 'Part not used' });
-			expect(r.data.message).toBe(message);
+			const r = (await run(amount)) as Refused;
+			expect(r.data.form).toMatchObject({ id: `refund-${p.id}`, data: { amount, reason: 'Part not used' } });
+			expect(said(r)).toBe(message);
 		}
-		expect(await run('10.5')).toMatchObject({ ok: true, message: 'Refunded €10.50.' });
+		expect(await run('10.5')).toMatchObject({ form: { valid: true, message: 'Refunded €10.50.' } });
 		expect(await payment(p.id)).toMatchObject({ refundedMinor: 1050, status: 'paid' });
 		const db = await getDb();
 		const [row] = await db

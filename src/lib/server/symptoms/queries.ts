@@ -152,7 +152,11 @@ export async function add(actorId: string, input: SymptomAdd): Promise<Catalogue
 }
 
 /** Rename, regroup (to the end of the new group), retire or bring back. Unchanged input writes nothing. */
-export async function update(actorId: string, code: string, input: SymptomEdit): Promise<CatalogueSymptom> {
+export async function update(
+	actorId: string,
+	code: string,
+	input: Omit<SymptomEdit, 'code'>
+): Promise<CatalogueSymptom> {
 	await ensureSeeded();
 	const db = await getDb();
 	return db.transaction(async (tx) => {

@@ -1,9 +1,8 @@
 import { fail } from '@sveltejs/kit';
 import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { z } from 'zod';
 import { requireRole } from '$lib/server/guards';
-import { formFailure, refusalOf } from '$lib/server/http';
+import { act, formFailure } from '$lib/server/http';
 import * as staff from '$lib/server/staff/queries';
 import * as schemas from '$lib/schemas/staff';
 import type { Actions, PageServerLoad } from './$types';
@@ -18,22 +17,15 @@ export const load: PageServerLoad = async (event) => {
 	return { members, audit, createForm };
 };
 
-/** Row actions answer with the row's id, so the page shows the message on that row. */
-function rowFailure(id: string, status: number, text: string) {
-	return fail(status, { row: { id, message: text, ok: false } });
-}
-const rowRefusal = (id: string, e: unknown) => {
-	const { status, body } = refusalOf(e);
-	return rowFailure(id, status, body.message);
-};
+// Each row's three forms are superforms of their own, told apart by the member's id.
+const roleAdapter = zod4(schemas.changeRole);
+const disabledAdapter = zod4(schemas.setDisabled);
+const resetAdapter = zod4(schemas.resetPassword);
 
-async function parseRow<T extends z.ZodType>(request: Request, schema: T) {
-	const raw = Object.fromEntries(await request.formData());
-	const id = typeof raw.id === 'string' ? raw.id : '';
-	const disabled = raw.disabled === undefined ? undefined : raw.disabled === 'true';
-	const parsed = schema.safeParse({ ...raw, disabled });
-	const problem = parsed.success ? '' : (parsed.error.issues[0]?.message ?? 'That request was malformed.');
-	return { id, parsed, problem };
+/** The posted fields and the row form's id, `<action>-<member id>`. */
+async function rowPost(request: Request, kind: 'role' | 'disabled' | 'reset') {
+	const body = await request.formData();
+	return { body, id: `${kind}-${String(body.get('id') ?? '')}` };
 }
 
 export const actions: Actions = {
@@ -59,49 +51,37 @@ export const actions: Actions = {
 
 	role: async (event) => {
 		const lead = requireRole(event, 'lead');
-		const { id, parsed, problem } = await parseRow(event.request, schemas.changeRole);
-		if (!parsed.success) return rowFailure(id, 400, problem);
-		try {
-			const updated = await staff.changeRole(lead.id, parsed.data.id, parsed.data.role);
-			return { row: { id: updated.id, message: `Role changed to ${updated.role}.`, ok: true } };
-		} catch (e) {
-			return rowRefusal(parsed.data.id, e);
-		}
+		const { body, id } = await rowPost(event.request, 'role');
+		const form = await superValidate(body, roleAdapter, { id });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const updated = await staff.changeRole(lead.id, form.data.id, form.data.role);
+			return message(form, `Role changed to ${updated.role}.`);
+		});
 	},
 
 	disabled: async (event) => {
 		const lead = requireRole(event, 'lead');
-		const { id, parsed, problem } = await parseRow(event.request, schemas.setDisabled);
-		if (!parsed.success) return rowFailure(id, 400, problem);
-		try {
-			const updated = await staff.setDisabled(lead.id, parsed.data.id, parsed.data.disabled);
-			return {
-				row: {
-					id: updated.id,
-					message: updated.disabled ? 'Disabled: they can no longer sign in.' : 'Enabled again.',
-					ok: true
-				}
-			};
-		} catch (e) {
-			return rowRefusal(parsed.data.id, e);
-		}
+		const { body, id } = await rowPost(event.request, 'disabled');
+		const form = await superValidate(body, disabledAdapter, { id });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const updated = await staff.setDisabled(lead.id, form.data.id, form.data.disabled);
+			return message(form, updated.disabled ? 'Disabled: they can no longer sign in.' : 'Enabled again.');
+		});
 	},
 
 	reset: async (event) => {
 		const lead = requireRole(event, 'lead');
-		const { id, parsed, problem } = await parseRow(event.request, schemas.resetPassword);
-		if (!parsed.success) return rowFailure(id, 400, `Temporary password: ${problem}`);
-		try {
-			await staff.resetPassword(lead.id, parsed.data.id, parsed.data.password);
-			return {
-				row: {
-					id: parsed.data.id,
-					message: 'Password reset. They choose a new one at their next sign-in.',
-					ok: true
-				}
-			};
-		} catch (e) {
-			return rowRefusal(parsed.data.id, e);
-		}
+		const { body, id } = await rowPost(event.request, 'reset');
+		const form = await superValidate(body, resetAdapter, { id });
+		// The temporary password is not sent back, as with the create form.
+		const password = form.data.password;
+		form.data.password = '';
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			await staff.resetPassword(lead.id, form.data.id, password);
+			return message(form, 'Password reset. They choose a new one at their next sign-in.');
+		});
 	}
 };

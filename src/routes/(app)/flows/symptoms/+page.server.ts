@@ -1,13 +1,17 @@
 import { fail } from '@sveltejs/kit';
-import { z } from 'zod';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { hasRole } from '$lib/roles';
 import { requireRole, requireUser } from '$lib/server/guards';
-import { refusalOf, RuleError } from '$lib/server/http';
+import { act } from '$lib/server/http';
 import * as catalogue from '$lib/server/symptoms/queries';
 import * as staff from '$lib/server/staff/queries';
 import { symptomAdd, symptomEdit } from '$lib/schemas/symptom';
 import { groupSymptoms } from '$lib/symptoms';
 import type { Actions, PageServerLoad } from './$types';
+
+const addAdapter = zod4(symptomAdd);
+const editAdapter = zod4(symptomEdit);
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
@@ -16,7 +20,26 @@ export const load: PageServerLoad = async (event) => {
 		catalogue.usage(),
 		canEdit ? staff.auditFor('symptom', undefined, 20) : []
 	]);
+	const editForms = canEdit
+		? Object.fromEntries(
+				await Promise.all(
+					usage.map(
+						async (s) =>
+							[
+								s.code,
+								await superValidate(
+									{ code: s.code, label: s.label, group: s.group, retired: s.retired },
+									editAdapter,
+									{ id: editId(s.code), errors: false }
+								)
+							] as const
+					)
+				)
+			)
+		: {};
 	return {
+		addForm: await superValidate(addAdapter, { id: 'symptom-add' }),
+		editForms,
 		groups: groupSymptoms(usage),
 		groupNames: [...new Set(usage.map((s) => s.group))],
 		canEdit,
@@ -51,68 +74,32 @@ function describe(action: string, code: string | null, details: Record<string, u
 	}
 }
 
-/** Field messages keyed by field name, the first per field. */
-function fieldErrors(error: z.ZodError): Record<string, string> {
-	const out: Record<string, string> = {};
-	for (const issue of error.issues) {
-		const key = String(issue.path[0] ?? 'form');
-		out[key] ??= issue.message;
-	}
-	return out;
-}
-
-type Refusal = {
-	form: 'add' | 'update';
-	code?: string | null;
-	values: Record<string, string>;
-	errors: Record<string, string>;
-};
-const refuse = (status: number, data: Refusal) => fail(status, data);
-
-async function fields(event: { request: Request }) {
-	return Object.fromEntries([...(await event.request.formData())].map(([k, v]) => [k, String(v)]));
-}
+/** The row forms' ids: one superform per symptom, told apart by its code. */
+const editId = (code: string) => `symptom-${code}`;
 
 export const actions: Actions = {
 	add: async (event) => {
 		const user = requireRole(event, 'senior');
-		const values = await fields(event);
-		const parsed = symptomAdd.safeParse(values);
-		if (!parsed.success) return refuse(400, { form: 'add', values, errors: fieldErrors(parsed.error) });
-		try {
-			const row = await catalogue.add(user.id, parsed.data);
-			return {
-				form: 'add',
-				saved: row.code,
-				message: `“${row.label}” is in the catalogue under ${row.group}.`
-			};
-		} catch (e) {
-			const { status, body } = refusalOf(e);
-			const field = e instanceof RuleError ? e.field : undefined;
-			return refuse(status, { form: 'add', values, errors: { [field ?? 'form']: body.message } });
-		}
+		const form = await superValidate(event.request, addAdapter, { id: 'symptom-add' });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const row = await catalogue.add(user.id, form.data);
+			return message(form, `“${row.label}” is in the catalogue under ${row.group}.`);
+		});
 	},
 	update: async (event) => {
 		const user = requireRole(event, 'senior');
-		const values = await fields(event);
-		const code = z.string().max(60).safeParse(values.code);
-		const parsed = symptomEdit.safeParse(values);
-		if (!code.success || !parsed.success)
-			return refuse(400, {
-				form: 'update',
-				code: values.code ?? null,
-				values,
-				errors: parsed.success ? { form: 'Choose a symptom to change.' } : fieldErrors(parsed.error)
-			});
-		try {
-			const row = await catalogue.update(user.id, code.data, parsed.data);
-			const message = row.retired
-				? `“${row.label}” is retired: intake no longer offers it; jobs that have it keep it.`
-				: `“${row.label}” is saved.`;
-			return { form: 'update', saved: row.code, message };
-		} catch (e) {
-			const { status, body } = refusalOf(e);
-			return refuse(status, { form: 'update', code: code.data, values, errors: { form: body.message } });
-		}
+		const body = await event.request.formData();
+		const form = await superValidate(body, editAdapter, { id: editId(String(body.get('code') ?? '')) });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const row = await catalogue.update(user.id, form.data.code, form.data);
+			return message(
+				form,
+				row.retired
+					? `“${row.label}” is retired: intake no longer offers it; jobs that have it keep it.`
+					: `“${row.label}” is saved.`
+			);
+		});
 	}
 };

@@ -82,7 +82,11 @@ describe('the symptom catalogue page', () => {
 		expect(
 			await add(sena, { code: 'Speaker-Rattle', label: 'Loudspeaker rattles', group: 'Sound and voice' })
 		).toMatchObject({
-			saved: 'speaker-rattle'
+			form: {
+				valid: true,
+				data: { code: 'speaker-rattle' },
+				message: expect.stringContaining('Sound and voice')
+			}
 		});
 		const added = (await catalogue.catalogue()).find((s) => s.code === 'speaker-rattle')!;
 		expect(added).toMatchObject({ label: 'Loudspeaker rattles', group: 'Sound and voice', retired: false });
@@ -105,7 +109,9 @@ describe('the symptom catalogue page', () => {
 			group: 'Buttons and body',
 			retired: 'on'
 		});
-		expect(retired).toMatchObject({ message: expect.stringContaining('retired') });
+		expect(retired).toMatchObject({
+			form: { id: 'symptom-speaker-rattle', message: expect.stringContaining('retired') }
+		});
 		expect(await auditOf('speaker-rattle')).toEqual(['symptom.add', 'symptom.update', 'symptom.retire']);
 		const [renamed] = await (
 			await getDb()
@@ -122,22 +128,30 @@ describe('the symptom catalogue page', () => {
 	});
 
 	it('refuses bad input with field messages and the values back, and a duplicate code with 409', async () => {
-		const bad = (await add(sena, { code: 'no power!', label: 'x', group: 'Care' })) as {
+		type Refused = {
 			status: number;
-			data: { values: Record<string, string>; errors: Record<string, string> };
+			data: {
+				form: { data: Record<string, string>; errors: Record<string, string[]> & { _errors?: string[] } };
+			};
 		};
+		const bad = (await add(sena, { code: 'no power!', label: 'x', group: 'Care' })) as Refused;
 		expect(bad.status).toBe(400);
-		expect(Object.keys(bad.data.errors).sort()).toEqual(['code', 'label']);
-		expect(bad.data.values.code).toBe('no power!');
-		const dup = (await add(sena, { code: 'no-power', label: 'No power at all', group: 'Care' })) as {
-			status: number;
-			data: { errors: Record<string, string> };
-		};
+		expect(Object.keys(bad.data.form.errors).sort()).toEqual(['code', 'label']);
+		expect(bad.data.form.data.code).toBe('no power!');
+		const dup = (await add(sena, { code: 'no-power', label: 'No power at all', group: 'Care' })) as Refused;
 		expect(dup.status).toBe(409);
-		expect(dup.data.errors.code).toMatch(/already has/);
-		const missing = (await update(sena, { code: 'no-such-code', label: 'Nothing', group: 'Care' })) as {
-			status: number;
-		};
+		expect(dup.data.form.errors.code?.[0]).toMatch(/already has/);
+		expect(dup.data.form.data.label).toBe('No power at all');
+		const badEdit = (await update(sena, { code: 'vibration', label: 'x', group: 'Care' })) as Refused;
+		expect(badEdit.status).toBe(400);
+		expect(badEdit.data.form.errors.label?.[0]).toMatch(/few words/);
+		expect(badEdit.data.form.data).toMatchObject({ code: 'vibration', label: 'x', group: 'Care' });
+		const missing = (await update(sena, {
+			code: 'no-such-code',
+			label: 'Nothing',
+			group: 'Care'
+		})) as Refused;
+		expect(missing.data.form.errors._errors?.[0]).toBeTruthy();
 		expect(missing.status).toBe(404);
 	});
 });

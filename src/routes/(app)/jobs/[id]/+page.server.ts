@@ -2,7 +2,9 @@ import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
-import { actionFailure } from '$lib/server/http';
+import { act, actionFailure } from '$lib/server/http';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from './runs-section';
 import * as symptomCatalogue from '$lib/server/symptoms/queries';
@@ -11,7 +13,7 @@ import { jobStatusSchema, statusLabels } from '$lib/domain/jobStatus';
 import { customerSection } from './customer-section';
 import * as quoteActions from './customer-actions';
 import { recordDataOutcome } from '$lib/server/jobs/data-outcome';
-import { dataOutcomeInput } from '$lib/schemas/data-outcome';
+import { dataOutcomeForm, dataOutcomeInput } from '$lib/schemas/data-outcome';
 import { dataOutcomeLabels } from '$lib/domain/data-first';
 import * as preRepair from '$lib/server/checklists/preRepair';
 import type { Actions, PageServerLoad } from './$types';
@@ -38,15 +40,31 @@ export const load: PageServerLoad = async (event) => {
 		photos: jobPhotos,
 		customerSide,
 		quoteForm: await quoteActions.quoteFormFor(customerSide),
-		preRepair: { items: preRepairItems, editable: preRepair.preRepairEditable.includes(job.status) }
+		preRepair: { items: preRepairItems, editable: preRepair.preRepairEditable.includes(job.status) },
+		statusForm: await superValidate(statusAdapter, { id: 'status' }),
+		assignForm: await superValidate({ technicianId: job.technicianId ?? '' }, assignAdapter, {
+			id: 'assign',
+			errors: false
+		}),
+		consentForm: await superValidate(consentAdapter, { id: 'consent' }),
+		dataOutcomeForm: await superValidate(dataOutcomeAdapter, { id: 'dataOutcome' })
 	};
 };
 
+// A string with a check, not an enum: superforms would fill a missing enum with its first status.
 const statusForm = z.object({
-	to: jobStatusSchema,
+	to: z.string().refine((v) => jobStatusSchema.safeParse(v).success, 'Choose a status.'),
 	note: text('The note').trim().max(1000, 'Keep the note under 1000 characters.').default('')
 });
-const assignForm = z.object({ technicianId: z.union([z.uuid(), z.literal('')]) });
+const assignForm = z.object({
+	technicianId: z.union([z.uuid('Choose a staff member.'), z.literal('')]).default('')
+});
+// Consent posts nothing but the button; a superform still carries its message and refusal.
+const consentForm = z.object({});
+const statusAdapter = zod4(statusForm);
+const assignAdapter = zod4(assignForm);
+const consentAdapter = zod4(consentForm);
+const dataOutcomeAdapter = zod4(dataOutcomeForm);
 
 /** Each action answers `{ action, ok, message }` so the page can say what happened beside the control. */
 function refused(action: string, status: number, message: string) {
@@ -56,26 +74,27 @@ function refused(action: string, status: number, message: string) {
 export const actions: Actions = {
 	status: async (event) => {
 		const user = requireRole(event, 'technician');
-		const parsed = statusForm.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return refused('status', 400, parsed.error.issues[0]?.message ?? 'Choose a status.');
-		try {
-			const job = await jobs.transition(event.params.id, parsed.data.to, user.id, parsed.data.note);
-			return { action: 'status', ok: true, message: `Moved to ${statusLabels[job.status]}.` };
-		} catch (e) {
-			return actionFailure(e, { action: 'status', ok: false });
-		}
+		const form = await superValidate(event.request, statusAdapter, { id: 'status' });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const job = await jobs.transition(
+				event.params.id,
+				jobStatusSchema.parse(form.data.to),
+				user.id,
+				form.data.note
+			);
+			return message(form, `Moved to ${statusLabels[job.status]}.`);
+		});
 	},
 
 	assign: async (event) => {
 		const user = requireRole(event, 'technician');
-		const parsed = assignForm.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return refused('assign', 400, 'Choose a staff member.');
-		try {
-			await jobs.assignTechnician(event.params.id, parsed.data.technicianId || null, user.id);
-			return { action: 'assign', ok: true, message: parsed.data.technicianId ? 'Assigned.' : 'Unassigned.' };
-		} catch (e) {
-			return actionFailure(e, { action: 'assign', ok: false });
-		}
+		const form = await superValidate(event.request, assignAdapter, { id: 'assign' });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			await jobs.assignTechnician(event.params.id, form.data.technicianId || null, user.id);
+			return message(form, form.data.technicianId ? 'Assigned.' : 'Unassigned.');
+		});
 	},
 
 	preRepair: async (event) => {
@@ -117,35 +136,21 @@ export const actions: Actions = {
 	// What became of the customer's data (src/lib/server/jobs/data-outcome.ts); runs ask on their own.
 	dataOutcome: async (event) => {
 		const user = requireRole(event, 'technician');
-		const form = Object.fromEntries(await event.request.formData());
-		const parsed = dataOutcomeInput.safeParse(form);
-		const back = { outcome: String(form.outcome ?? ''), note: String(form.note ?? '') };
-		if (!parsed.success)
-			return fail(400, {
-				action: 'dataOutcome',
-				ok: false,
-				message: parsed.error.issues[0].message,
-				...back
-			});
-		try {
-			const job = await recordDataOutcome(event.params.id, parsed.data, user.id);
-			return {
-				action: 'dataOutcome',
-				ok: true,
-				message: `Recorded: ${dataOutcomeLabels[job.dataOutcome ?? parsed.data.outcome]}.`
-			};
-		} catch (e) {
-			return actionFailure(e, { action: 'dataOutcome', ok: false });
-		}
+		const form = await superValidate(event.request, dataOutcomeAdapter, { id: 'dataOutcome' });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const input = dataOutcomeInput.parse(form.data);
+			const job = await recordDataOutcome(event.params.id, input, user.id);
+			return message(form, `Recorded: ${dataOutcomeLabels[job.dataOutcome ?? input.outcome]}.`);
+		});
 	},
 
 	consent: async (event) => {
 		const user = requireRole(event, 'technician');
-		try {
+		const form = await superValidate(event.request, consentAdapter, { id: 'consent' });
+		return act(form, async () => {
 			await jobs.recordConsent(event.params.id, user.id);
-			return { action: 'consent', ok: true, message: 'Consent to open recorded.' };
-		} catch (e) {
-			return actionFailure(e, { action: 'consent', ok: false });
-		}
+			return message(form, 'Consent to open recorded.');
+		});
 	}
 };

@@ -1,11 +1,11 @@
 /** The job page's customer-side actions; the route calls requireRole first and passes the user. */
 import { fail, type RequestEvent } from '@sveltejs/kit';
 import { z } from 'zod';
-import { text } from '$lib/schemas/text';
 import * as quotes from '$lib/server/quotes/queries';
 import { getMoney } from '$lib/server/settings/queries';
 import { formatAmountInput, parseAmount, parseLines } from '$lib/quotes/input';
-import { message, superValidate } from 'sveltekit-superforms';
+import { message, setError, superValidate } from 'sveltekit-superforms';
+import { refundForm, refundFormId } from '$lib/schemas/refund';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { quoteForm, rowsOf } from '$lib/schemas/quote';
 import type { QuoteLine } from '$lib/domain/money';
@@ -77,11 +77,7 @@ export async function revokeLink(event: RequestEvent<{ id: string }>, user: User
 	};
 }
 
-const refundForm = z.object({
-	paymentId: z.uuid('Choose a payment.'),
-	amount: text('The amount').max(30, 'Enter the amount as a number, e.g. 12.50.'),
-	reason: text('The reason').trim().max(500, 'Keep the reason under 500 characters.').default('')
-});
+const refundAdapter = zod4(refundForm);
 
 /**
  * A lead refunds all or part of a paid payment of this job. The typed amount (major units) becomes
@@ -89,43 +85,42 @@ const refundForm = z.object({
  * the page can usually say "refunded" at once.
  */
 export async function refund(event: RequestEvent<{ id: string }>, user: User) {
-	const raw = Object.fromEntries(await event.request.formData());
-	const parsed = refundForm.safeParse(raw);
-	const kept = { amount: String(raw.amount ?? ''), reason: String(raw.reason ?? '') };
-	const paymentId = typeof raw.paymentId === 'string' ? raw.paymentId : '';
-	const refused = (status: number, message: string) =>
-		fail(status, { action: 'refund', ok: false, message, paymentId, ...kept });
-	if (!parsed.success) return refused(400, parsed.error.issues[0]?.message ?? 'Check the refund.');
+	const body = await event.request.formData();
+	const id = refundFormId(String(body.get('paymentId') ?? ''));
+	const form = await superValidate(body, refundAdapter, { id });
+	// A refusal of the amount goes beside it; any other under the form. The status is kept.
+	const refused = (status: number, text: string, field: 'amount' | '' = '') =>
+		setError(form, field, text, { status: status as 400 });
+	if (!form.valid) return fail(400, { form });
 	const scope = { type: 'job', idPrefix: `${event.params.id}:` };
-	const payment = await refunds.paymentInScope(parsed.data.paymentId, scope);
+	const payment = await refunds.paymentInScope(form.data.paymentId, scope);
 	if (!payment) return refused(404, 'No such payment on this job.');
 	const currency = payment.currency.toUpperCase();
-	if (!parsed.data.amount.trim()) return refused(400, 'Enter the amount to refund.');
-	const amount = parseAmount(parsed.data.amount, currency);
+	if (!form.data.amount.trim()) return refused(400, 'Enter the amount to refund.', 'amount');
+	const amount = parseAmount(form.data.amount, currency);
 	if (!amount.ok)
-		return refused(400, amount.error.replace('A price', 'A refund').replace(/\bprice\b/g, 'amount'));
-	if (amount.value === 0) return refused(400, 'The refund must be more than zero.');
-	try {
+		return refused(
+			400,
+			amount.error.replace('A price', 'A refund').replace(/\bprice\b/g, 'amount'),
+			'amount'
+		);
+	if (amount.value === 0) return refused(400, 'The refund must be more than zero.', 'amount');
+	return act(form, async () => {
 		const pending = await refunds.requestRefund(user.id, {
 			paymentId: payment.id,
 			amountMinor: amount.value,
-			reason: parsed.data.reason,
+			reason: form.data.reason,
 			scope
 		});
 		const done = await refunds.settled(pending.id);
 		const m = formatMoney(amount.value, currency, 'en-GB');
 		if (done?.status === 'failed')
 			return refused(502, `The refund of ${m} failed: ${done.failureReason ?? 'no reason given'}`);
-		return {
-			action: 'refund',
-			ok: true,
-			paymentId,
-			message:
-				done?.status === 'succeeded'
-					? `Refunded ${m}.`
-					: `Refund of ${m} sent; it shows as refunded once the payment service confirms it.`
-		};
-	} catch (e) {
-		return actionFailure(e, { action: 'refund', ok: false, paymentId, ...kept });
-	}
+		return message(
+			form,
+			done?.status === 'succeeded'
+				? `Refunded ${m}.`
+				: `Refund of ${m} sent; it shows as refunded once the payment service confirms it.`
+		);
+	});
 }
