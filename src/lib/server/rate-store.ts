@@ -3,7 +3,7 @@
  * through rate-limiter-flexible's drizzle store, so every process counts into the same window and
  * a restart forgets nothing; on the embedded database in the process's memory, because there is
  * only one process and a write per request would cost the single thread (docs/decisions/
- * multiproc-rate-limits.md).
+ * 0014-rate-limits-in-the-database.md).
  */
 import { RateLimiterDrizzle, RateLimiterMemory, type RateLimiterAbstract } from 'rate-limiter-flexible';
 import { getHandle, type DbKind, type DB } from '$lib/server/db';
