@@ -8,9 +8,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { randomUUID } from 'node:crypto';
 import autocannon from 'autocannon';
-import pg from 'pg';
 import { ensureBuild, freePort, startServer } from './lib.mjs';
-import { imeiCheckDigit } from '../src/lib/domain/identifiers';
+import { benchIntake, cpuMs, freshDatabase, pct } from './server-figures';
 import { dryLonger, loopStep, restartLoopFlow, toCleanAndDry } from '../src/lib/server/runs/walks';
 
 const CLIENTS = 32;
@@ -19,17 +18,6 @@ const PASSWORD = 'bench-demo-password';
 const ADMIN_URL = process.env.DATABASE_URL;
 
 type Figures = { processes: number; rate: number; p50: number; p95: number; non2xx: number; cpuMs: number };
-
-const pct = (xs: number[], p: number) => {
-	const s = [...xs].sort((a, b) => a - b);
-	return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))];
-};
-
-/** User + system CPU of a process so far, in ms (Linux /proc; clock ticks of 10 ms). */
-function cpuMs(pid: number): number {
-	const fields = fs.readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
-	return (Number(fields[11]) + Number(fields[12])) * 10;
-}
 
 if (!ADMIN_URL) {
 	console.log('DATABASE_URL not set: the two-process run needs a PostgreSQL server (see .ci/run). Skipped.');
@@ -149,19 +137,7 @@ async function api(port: number, cookie: string, method: string, url: string, bo
 
 /** A job and a run of the restart-loop flow, walked to its loop step. */
 async function runAtLoopStep(port: number, cookie: string, i: number) {
-	const body14 = `0098${String(i).padStart(10, '0')}`;
-	const job = await api(port, cookie, 'POST', '/api/jobs', {
-		customerName: 'Bench Customer',
-		customerEmail: 'bench@example.test',
-		maker: 'Corvana',
-		model: 'Tern 5',
-		imei: `${body14}${imeiCheckDigit(body14)}`,
-		symptoms: ['restart-loop'],
-		liquid: 'fresh',
-		submerged: false,
-		passcodeStatus: 'withheld',
-		consentToOpen: true
-	});
+	const job = await api(port, cookie, 'POST', '/api/jobs', benchIntake('0098', i));
 	const run = await api(port, cookie, 'POST', '/api/runs', { jobId: job.id, flowId: restartLoopFlow });
 	for (const [stepId, outcome] of toCleanAndDry)
 		await api(port, cookie, 'POST', `/api/runs/${run.id}/events`, {
@@ -183,24 +159,4 @@ async function signIn(port: number) {
 	const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0]);
 	if (!cookies.some((c) => c.includes('session-token'))) throw new Error(`sign-in failed: ${res.status}`);
 	return cookies.join('; ');
-}
-
-/** A new, empty database on the server DATABASE_URL names, dropped after the measurement. */
-async function freshDatabase(adminUrl: string) {
-	const name = `tidemark_bench_${randomUUID().slice(0, 8)}`;
-	const admin = new pg.Client({ connectionString: adminUrl });
-	await admin.connect();
-	await admin.query(`create database ${name}`);
-	await admin.end();
-	const url = new URL(adminUrl);
-	url.pathname = `/${name}`;
-	return {
-		url: url.href,
-		drop: async () => {
-			const c = new pg.Client({ connectionString: adminUrl });
-			await c.connect();
-			await c.query(`drop database if exists ${name} with (force)`);
-			await c.end();
-		}
-	};
 }

@@ -15,9 +15,8 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import { randomUUID } from 'node:crypto';
 import autocannon from 'autocannon';
-import pg from 'pg';
 import { ensureBuild, freePort, startServer } from './lib.mjs';
-import { imeiCheckDigit } from '../src/lib/domain/identifiers';
+import { benchIntake, cpuMs, freshDatabase, pct } from './server-figures';
 import { dryLonger, loopStep, restartLoopFlow, toCleanAndDry } from '../src/lib/server/runs/walks';
 
 const FLAT_CLIENTS = 16;
@@ -33,16 +32,6 @@ type Loop = { maxMs: number; p99Ms: number; meanMs: number };
 type Window = { rate: number; times: number[]; loop: Loop; non2xx: number; cpuMs: number };
 type Figures = { build: string; db: string; flat: Window; paced: Window; floor: Window; js?: number };
 
-/** User + system CPU of a process so far, in ms (Linux /proc; clock ticks of 10 ms). */
-function cpuMs(pid: number): number {
-	const fields = fs.readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
-	return (Number(fields[11]) + Number(fields[12])) * 10;
-}
-
-const pct = (xs: number[], p: number) => {
-	const s = [...xs].sort((a, b) => a - b);
-	return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))];
-};
 const fmt = (ms: number) => `${ms.toFixed(2)} ms`;
 
 if (BUILDS.includes('build')) ensureBuild();
@@ -116,19 +105,7 @@ async function measure(build: string, db: string): Promise<Figures> {
 		// and BACK, so the run's path stays short and every request does the full work.
 		const runIds: string[] = [];
 		for (let i = 0; i < Math.max(PACED_CLIENTS, FLAT_CLIENTS); i++) {
-			const body14 = `0099${String(i).padStart(10, '0')}`;
-			const job = await asTech('POST', '/api/jobs', {
-				customerName: 'Bench Customer',
-				customerEmail: 'bench@example.test',
-				maker: 'Corvana',
-				model: 'Tern 5',
-				imei: `${body14}${imeiCheckDigit(body14)}`,
-				symptoms: ['restart-loop'],
-				liquid: 'fresh',
-				submerged: false,
-				passcodeStatus: 'withheld',
-				consentToOpen: true
-			});
+			const job = await asTech('POST', '/api/jobs', benchIntake('0099', i));
 			const run = await asTech('POST', '/api/runs', { jobId: job.id, flowId: restartLoopFlow });
 			for (const [stepId, outcome] of toCleanAndDry)
 				await asTech('POST', `/api/runs/${run.id}/events`, {
@@ -254,26 +231,6 @@ async function measure(build: string, db: string): Promise<Figures> {
 		fs.rmSync(dataDir, { recursive: true, force: true });
 		await database?.drop();
 	}
-}
-
-/** A new, empty database on the server DATABASE_URL names, dropped after the measurement. */
-async function freshDatabase(adminUrl: string) {
-	const name = `tidemark_bench_${randomUUID().slice(0, 8)}`;
-	const admin = new pg.Client({ connectionString: adminUrl });
-	await admin.connect();
-	await admin.query(`create database ${name}`);
-	await admin.end();
-	const url = new URL(adminUrl);
-	url.pathname = `/${name}`;
-	return {
-		url: url.href,
-		drop: async () => {
-			const c = new pg.Client({ connectionString: adminUrl });
-			await c.connect();
-			await c.query(`drop database if exists ${name} with (force)`);
-			await c.end();
-		}
-	};
 }
 
 /** Signs in through the app's own form and returns the session cookie header. */
