@@ -111,7 +111,11 @@ export const setWorkflow = (value: WorkflowSettings) =>
  * two weeks are common practice, no published source; a shop changes them in /settings.
  */
 export const backupSettingsSchema = z.object({
-	everyHours: z.number().int('Whole hours.').min(1, 'At least every hour.').max(168, 'At least once a week (168 h).'),
+	everyHours: z
+		.number()
+		.int('Whole hours.')
+		.min(1, 'At least every hour.')
+		.max(168, 'At least once a week (168 h).'),
 	keep: z.number().int('A whole number of backups.').min(1, 'Keep at least one.').max(365, 'At most 365.')
 });
 export type BackupSettings = z.infer<typeof backupSettingsSchema>;
