@@ -26,6 +26,8 @@ export class RunOutbox {
 	/** False when the browser has no IndexedDB: the queue then lives only as long as the page. */
 	persistent = typeof indexedDB !== 'undefined';
 	/** Entries pushed but not yet written: a list read from the store meanwhile must keep them. */
+	// Bookkeeping only (nothing renders from it): a plain Set, not a reactive one.
+	// eslint-disable-next-line svelte/prefer-svelte-reactivity
 	readonly unwritten = new Set<string>();
 
 	readonly runId: string;
