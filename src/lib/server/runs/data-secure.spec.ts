@@ -273,17 +273,14 @@ describe('the job page’s dataOutcome action', () => {
 			data: Record<string, unknown>;
 		};
 		expect(bad.status).toBe(400);
-		expect(bad.data).toMatchObject({
-			ok: false,
-			outcome: 'declined',
-			message: expect.stringMatching(/Add a note/)
+		// The form comes back with what was chosen and the reason beside the note.
+		expect(bad.data.form).toMatchObject({
+			data: { outcome: 'declined', note: '' },
+			errors: { note: [expect.stringMatching(/Add a note/)] }
 		});
 		expect(
 			await post(job.id, { outcome: 'declined', note: 'Customer said no at the counter' })
-		).toMatchObject({
-			ok: true,
-			message: 'Recorded: Customer declined.'
-		});
+		).toMatchObject({ form: { valid: true, message: 'Recorded: Customer declined.' } });
 		expect((await jobs.get(job.id))!).toMatchObject({
 			dataOutcome: 'declined',
 			dataNote: 'Customer said no at the counter'
