@@ -66,6 +66,7 @@ if (broken) {
 	console.log('\nA test runner stopped before reporting its results (see its output above).');
 	totals.failed += 1;
 }
-const skipped = totals.skipped ? `, ${totals.skipped} skipped` : '';
-console.log(`\n${totals.passed} passed, ${totals.failed} failed${skipped}`);
+// The last line is the plain total CI reads; skipped tests (a lane whose server is absent) above it.
+if (totals.skipped) console.log(`\n${totals.skipped} skipped`);
+console.log(`\n${totals.passed} passed, ${totals.failed} failed`);
 process.exit(totals.failed > 0 ? 1 : 0);
