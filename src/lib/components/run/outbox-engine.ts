@@ -27,6 +27,8 @@ export class OutboxEngine {
 	#pumping = false;
 	#wake: (() => void) | undefined;
 	#writes: Promise<unknown> = Promise.resolve();
+	/** Entries redone or discarded here: a store listing read before their removal landed must not bring them back. */
+	#gone = new Set<string>();
 
 	constructor(outbox: RunOutbox) {
 		this.#o = outbox;
@@ -69,8 +71,9 @@ export class OutboxEngine {
 
 	#fromStore(list: Entry[]) {
 		const o = this.#o;
+		const stored = list.filter((l) => !this.#gone.has(l.id));
 		const kept = o.entries.filter((e) => o.unwritten.has(e.id) && !list.some((l) => l.id === e.id));
-		o.entries = [...list, ...kept].sort(byOrder);
+		o.entries = [...stored, ...kept].sort(byOrder);
 	}
 
 	#write(work: (store: OutboxStore) => Promise<void>) {
@@ -90,6 +93,7 @@ export class OutboxEngine {
 	redo(entry: Entry) {
 		const o = this.#o;
 		const again = redo(entry, newKey());
+		this.#gone.add(entry.id);
 		o.entries = o.entries.filter((e) => e.id !== entry.id);
 		o.unwritten.add(again.id);
 		o.entries = [...o.entries, again];
@@ -97,6 +101,7 @@ export class OutboxEngine {
 	}
 
 	discard(entry: Entry) {
+		this.#gone.add(entry.id);
 		void this.#write((s) => s.remove(entry.id));
 	}
 
