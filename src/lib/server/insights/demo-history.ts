@@ -396,6 +396,7 @@ export async function generateHistory(opts: HistoryOptions): Promise<{ runs: num
 							flowVersionId: p.version.id,
 							technicianId: p.tech,
 							status: p.abandon ? ('abandoned' as const) : ('completed' as const),
+							lastSeq: p.kept.length,
 							// An abandoned run keeps the state it stood in when it was stopped.
 							snapshot: p.version.machine.getPersistedSnapshot(
 								p.abandon

@@ -1,19 +1,22 @@
 /**
  * Deciding one step event: one read, one write.
  *
- * Invariant: an event is decided against one consistent read of its run (the run row and its step
- * facts, one statement) and written in one statement that gives it the next step number, and only
- * while the run is still in progress on the step it was decided at. Step numbers are unique per run,
- * so of two events decided against the same read only one can be written; the other's statement
- * fails as a whole (or finds the run moved on) and the event is decided again from a fresh read. So
- * the events of one run land one after the other, each decided against the one before, and nothing
- * is remembered between events, by this process or any other. An event that ends the run writes
- * its insights facts and audit entry in the same transaction as its step. Events of different runs
- * share nothing, so one that fails rolls back alone.
+ * Invariant: an event is decided against one consistent read of its run row (and, when needed, its
+ * step facts), and written in one statement only while the run row still stands where it was read:
+ * in progress, on the same step, with the same newest step number, which the write moves on by one.
+ * So of two events decided against the same read only one is written; the other finds the run moved
+ * and is decided again from a fresh read. The events of one run land one after the other, each
+ * decided against the one before, and nothing is remembered between events, by this process or any
+ * other. The first read assumes the event's key is new; a key already stored for the run fails the
+ * write as a whole (a unique index), and every later read looks the key up, so a repeat returns the
+ * stored result and a refusal is never sent for an event that had landed. An event that ends the
+ * run writes its insights facts and audit entry in the same transaction as its step. Events of
+ * different runs share nothing, so one that fails rolls back alone.
  */
 import { getDb, type DB } from '$lib/server/db';
 import { record } from '$lib/server/audit';
 import { RuleError } from '$lib/server/errors';
+import { bodyHash, keyReusedMessage } from '$lib/server/idempotency';
 import { recordRunFinished } from '$lib/server/insights/facts';
 import { dataSecureRefusal } from './data-secure';
 import { planEvent } from '$lib/runs/plan';
@@ -25,9 +28,10 @@ import { eventFacts, isUuid, machineFor, stateOf, writeStep, type Actor, type St
 const ATTEMPTS = 8;
 
 /**
- * Applies one event to a run. A key seen before returns the stored result and writes nothing; an
- * event for a step that is no longer current, or on a finished run, is refused with 409 and the
- * current state; an outcome or reading the pinned version does not allow is refused with 400.
+ * Applies one event to a run. A key seen before with the same body returns the stored result and
+ * writes nothing (with a different body it is refused with 422); an event for a step that is no
+ * longer current, or on a finished run, is refused with 409 and the current state; an outcome or
+ * reading the pinned version does not allow is refused with 400.
  */
 export async function recordEvent(
 	runId: string,
@@ -36,19 +40,22 @@ export async function recordEvent(
 ): Promise<RunEventResult> {
 	if (!isUuid(runId)) throw new RuleError(404, 'not-found', 'No run with this id.');
 	const db = await getDb();
+	const hash = bodyHash(event);
 	for (let attempt = 1; ; attempt++) {
 		// PGlite answers on the main thread without real I/O, so events queued behind each other would
 		// follow one another in microtasks and starve timers and sockets; one turn of the event loop
 		// per event keeps the server responsive (bench/runs: longest stall).
 		await new Promise((resolve) => setImmediate(resolve));
+		const seen = attempt > 1;
 		try {
-			const result = await decide(db, runId, event, actor);
+			const result = await decide(db, runId, event, hash, actor, seen);
 			if (result) return result;
 		} catch (e) {
-			if (!isUniqueViolation(e)) throw e;
+			// A refusal on the first read may be for a repeat whose event had landed: read it again with its key.
+			if (!(isUniqueViolation(e) || (e instanceof RuleError && !seen && e.status !== 404))) throw e;
 		}
 		if (attempt === ATTEMPTS) {
-			const { run } = await eventFacts(db, runId, event.idempotencyKey, false);
+			const { run } = await eventFacts(db, runId, { key: event.idempotencyKey, seen: false, back: false });
 			throw new RuleError(409, 'stale-step', 'This run is changing too fast to answer; reload it.', {
 				state: stateOf(run)
 			});
@@ -61,11 +68,17 @@ async function decide(
 	db: DB,
 	runId: string,
 	event: RunEventInput,
-	actor: Actor
+	hash: string,
+	actor: Actor,
+	seen: boolean
 ): Promise<RunEventResult | null> {
-	const facts = await eventFacts(db, runId, event.idempotencyKey, event.type === 'BACK');
+	const facts = await eventFacts(db, runId, { key: event.idempotencyKey, seen, back: event.type === 'BACK' });
 	const { run } = facts;
-	if (facts.seen) return facts.seen;
+	if (facts.seen) {
+		// Steps stored before body hashes were kept have none: a repeat is all they can be told from.
+		if (facts.seen.hash && facts.seen.hash !== hash) throw new RuleError(422, 'key-reused', keyReusedMessage);
+		return facts.seen.result;
+	}
 	if (run.status !== 'in-progress')
 		throw new RuleError(
 			409,
@@ -121,6 +134,7 @@ async function decide(
 		notes: event.notes?.trim() ?? '',
 		actorId: actor.id,
 		key: event.idempotencyKey,
+		hash,
 		result,
 		revises: event.type === 'BACK' ? (facts.last?.id ?? null) : null
 	};

@@ -421,6 +421,18 @@ describe('events that race', () => {
 		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'same-key')).toHaveLength(1);
 	});
 
+	it('of one key sent at once with two different bodies, one lands and the other is refused with 422', async () => {
+		const runId = await atCleanAndDry();
+		const results = await Promise.allSettled([
+			event(runId, 'ANSWER', 'reused-key'),
+			event(runId, 'BACK', 'reused-key')
+		]);
+		expect(results.filter((r) => r.status === 'fulfilled')).toHaveLength(1);
+		const refused = results.find((r) => r.status === 'rejected') as PromiseRejectedResult;
+		expect(refused.reason).toMatchObject({ status: 422, code: 'key-reused' });
+		expect((await stepRows(runId)).filter((r) => r.idempotencyKey === 'reused-key')).toHaveLength(1);
+	});
+
 	it('of two BACKs sent together from the same step one lands; the other finds the run moved on', async () => {
 		const runId = await atCleanAndDry();
 		const [a, b] = await Promise.allSettled([event(runId, 'BACK'), event(runId, 'BACK')]);

@@ -124,18 +124,41 @@ export async function lockRun(tx: Tx, runId: string): Promise<Run> {
 }
 
 /**
- * One consistent read of what an event is decided against: the run row, the stored result of the
- * event's key, the next step number, and, for a BACK only, the answer it would revise (the newest
- * one still standing; run_steps_standing_idx). One statement, so all of it is as of one moment.
+ * One consistent read of what an event is decided against (one statement, so all of it is as of one
+ * moment): the run row, whose `last_seq` gives the next step number; with `seen`, the stored result
+ * and body hash of the event's key; for a BACK, the answer it would revise (the newest one still
+ * standing; run_steps_standing_idx). ANSWER and MEASURE spare that look-up, and ./commit.ts asks
+ * for the key only once the event did not simply land.
  */
-export async function eventFacts(db: DB | Tx, runId: string, key: string, back: boolean) {
-	const [row] = await db
+export async function eventFacts(db: DB, runId: string, want: { key: string; seen: boolean; back: boolean }) {
+	const [row] = await factsQuery(db, want.seen, want.back).execute({ id: runId, key: want.key });
+	if (!row) throw new RuleError(404, 'not-found', 'No run with this id.');
+	return { ...row, seq: row.run.lastSeq + 1 };
+}
+
+// The read is prepared once per database handle and variant: building a select costs about as much
+// CPU as PGlite takes to answer it, and this is the busiest read of a shop's day.
+type FactsQuery = ReturnType<ReturnType<typeof factsSelect>['prepare']>;
+const prepared = new WeakMap<DB, Map<string, FactsQuery>>();
+
+function factsQuery(db: DB, seen: boolean, back: boolean) {
+	const name = `run_event_facts_${+seen}${+back}`;
+	let byName = prepared.get(db);
+	if (!byName) prepared.set(db, (byName = new Map()));
+	let query = byName.get(name);
+	if (!query) byName.set(name, (query = factsSelect(db, seen, back).prepare(name)));
+	return query;
+}
+
+function factsSelect(db: DB, seen: boolean, back: boolean) {
+	return db
 		.select({
 			run: runs,
-			seen: sql<RunEventResult | null>`(select rs.result from run_steps rs
-				where rs.run_id = runs.id and rs.idempotency_key = ${key})`,
-			seq: sql<number>`(select coalesce(max(rs.seq), 0)::int + 1 from run_steps rs where rs.run_id = runs.id)`,
-			// Only a BACK revises an answer: an ANSWER or MEASURE spares the look-up.
+			seen: seen
+				? sql<{ result: RunEventResult; hash: string | null } | null>`(select
+				json_build_object('result', rs.result, 'hash', rs.body_hash) from run_steps rs
+				where rs.run_id = runs.id and rs.idempotency_key = ${sql.placeholder('key')})`
+				: sql<null>`null`,
 			last: back
 				? sql<{ id: number; seq: number } | null>`(select json_build_object('id', rs.id, 'seq', rs.seq)
 				from run_steps rs where rs.run_id = runs.id and rs.kind <> 'back' and rs.superseded_at is null
@@ -143,9 +166,7 @@ export async function eventFacts(db: DB | Tx, runId: string, key: string, back: 
 				: sql<null>`null`
 		})
 		.from(runs)
-		.where(eq(runs.id, runId));
-	if (!row) throw new RuleError(404, 'not-found', 'No run with this id.');
-	return row;
+		.where(eq(runs.id, sql.placeholder('id')));
 }
 
 /** One accepted event as it is stored: the step row, a BACK's revision, and the run row. */
@@ -162,6 +183,8 @@ export type StepWrite = {
 	notes: string;
 	actorId: string;
 	key: string;
+	/** The event's body hash (src/lib/server/idempotency.ts). */
+	hash: string;
 	result: RunEventResult;
 	/** The run_steps row a BACK supersedes. */
 	revises: number | null;
@@ -169,33 +192,38 @@ export type StepWrite = {
 
 /**
  * Writes an accepted event in one statement: the run row, then the step row as number `seq` and a
- * BACK's revision only if the run row was still in progress on the step the event was decided at.
- * Returns false when it was not (nothing written). The unique step number per run refuses a second
- * event decided against the same read (the statement fails as a whole): see ./commit.ts.
+ * BACK's revision, only if the run row still stands where the event was decided: in progress, on
+ * the same step, with the same newest step number. Returns false when it does not (nothing
+ * written). A key already stored for the run fails the statement as a whole: see ./commit.ts.
  */
 export async function writeStep(db: DB | Tx, w: StepWrite): Promise<boolean> {
 	const { run, next } = w;
 	const at = w.at.toISOString();
 	const json = (v: unknown) => JSON.stringify(v);
+	const revised =
+		w.revises === null
+			? sql``
+			: sql`, revised as (
+			update ${runSteps} set superseded_at = ${at}::timestamptz
+			where id = ${w.revises}::bigint and exists (select 1 from moved)
+		)`;
 	const rows = await db.execute<{ moved: number }>(sql`
 		with moved as (
 			update ${runs} set snapshot = ${json(next.snapshot)}::jsonb, current_step = ${next.currentStep},
 				status = ${next.status}, verdict_code = ${next.verdictCode}, verdict_step = ${next.verdictStep},
-				data_reachable = ${next.dataReachable}::boolean,
+				data_reachable = ${next.dataReachable}::boolean, last_seq = ${w.seq},
 				finished_at = ${next.finishedAt?.toISOString() ?? null}::timestamptz, updated_at = ${at}::timestamptz
 			where id = ${run.id}::uuid and status = 'in-progress' and current_step = ${run.currentStep}
+				and last_seq = ${w.seq - 1}
 			returning id
 		), step as (
 			insert into ${runSteps} (run_id, seq, step_id, kind, answer, notes, actor_id, entered_at, answered_at,
-				idempotency_key, result)
+				idempotency_key, body_hash, result)
 			select moved.id, ${w.seq}, ${run.currentStep}, ${w.kind}, ${json(w.answer)}::jsonb, ${w.notes},
 				${w.actorId}::uuid, ${run.updatedAt.toISOString()}::timestamptz, ${at}::timestamptz, ${w.key},
-				${json(w.result)}::jsonb
+				${w.hash}, ${json(w.result)}::jsonb
 			from moved
-		), revised as (
-			update ${runSteps} set superseded_at = ${at}::timestamptz
-			where id = ${w.revises}::bigint and exists (select 1 from moved)
-		)
+		)${revised}
 		select count(*)::int as moved from moved`);
 	const list = Array.isArray(rows) ? rows : (rows as { rows: { moved: number }[] }).rows;
 	return Number(list[0]?.moved ?? 0) === 1;

@@ -7,7 +7,6 @@ import {
 	integer,
 	jsonb,
 	pgTable,
-	primaryKey,
 	text,
 	timestamp,
 	uniqueIndex,
@@ -42,6 +41,11 @@ export const runs = pgTable(
 		status: text('status', { enum: runStatuses }).notNull().default('in-progress'),
 		snapshot: jsonb('snapshot').$type<Record<string, unknown>>().notNull(),
 		currentStep: text('current_step').notNull(),
+		/**
+		 * The number of the run's newest step row (0 before the first answer). A step event is written
+		 * only while it is still the number the event was decided against (src/lib/server/runs/commit.ts).
+		 */
+		lastSeq: integer('last_seq').notNull().default(0),
 		verdictCode: text('verdict_code'),
 		verdictStep: text('verdict_step'),
 		/** True once an answer recorded `data-reachable`, false on `data-unreachable`, null while unknown. */
@@ -87,6 +91,11 @@ export const runSteps = pgTable(
 		answeredAt: timestamp('answered_at', { withTimezone: true }).notNull().defaultNow(),
 		supersededAt: timestamp('superseded_at', { withTimezone: true }),
 		idempotencyKey: text('idempotency_key').notNull(),
+		/**
+		 * The SHA-256 of the event's canonical JSON (src/lib/server/idempotency.ts), so the same key
+		 * with a different body is refused with 422 instead of replaying this step's answer.
+		 */
+		bodyHash: text('body_hash'),
 		/** The response sent for this event, returned unchanged when the same key arrives again. */
 		result: jsonb('result').$type<Record<string, unknown>>().notNull()
 	},
@@ -99,23 +108,6 @@ export const runSteps = pgTable(
 			.on(t.runId, t.seq)
 			.where(sql`${t.kind} <> 'back' and ${t.supersededAt} is null`)
 	]
-);
-
-/**
- * The body each idempotency key was first used with (a SHA-256 of its canonical JSON), so a key
- * reused for a different request is refused with 422 instead of replaying the first answer. Kept
- * beside run_steps rather than in it: the key is claimed before the event is checked.
- */
-export const requestKeys = pgTable(
-	'request_keys',
-	{
-		/** What the key belongs to, e.g. `run-event:<run id>`. */
-		scope: text('scope').notNull(),
-		key: text('key').notNull(),
-		bodyHash: text('body_hash').notNull(),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
-	},
-	(t) => [primaryKey({ columns: [t.scope, t.key] })]
 );
 
 export type Run = typeof runs.$inferSelect;

@@ -1,8 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guards';
 import { recordEvent } from '$lib/server/runs/commit';
-import { answer, badRequestFirst, readJson, type ApiError } from '$lib/server/http';
-import { claim, keyReusedMessage } from '$lib/server/idempotency';
+import { answer, badRequestFirst, readJson } from '$lib/server/http';
 import { runEventInput } from '$lib/schemas/run';
 import type { RunEventResult } from '$lib/runs/types';
 import type { RequestHandler } from './$types';
@@ -24,16 +23,7 @@ export const POST: RequestHandler = async (event) => {
 	if (!read.ok) return read.response;
 	const parsed = runEventInput.safeParse(read.body);
 	if (!parsed.success) return badRequestFirst(parsed.error);
-	const key = await claim(`run-event:${event.params.id}`, parsed.data.idempotencyKey, parsed.data);
-	if (key.status === 'different')
-		return json({ message: keyReusedMessage, code: 'key-reused' } satisfies ApiError, { status: 422 });
-	return answer(async () => {
-		try {
-			const result = await recordEvent(event.params.id, parsed.data, user);
-			return json(result satisfies RunEventResponse);
-		} catch (e) {
-			if (key.status === 'new') await key.release();
-			throw e;
-		}
-	});
+	return answer(async () =>
+		json((await recordEvent(event.params.id, parsed.data, user)) satisfies RunEventResponse)
+	);
 };
