@@ -2,6 +2,7 @@ import { desc, eq } from 'drizzle-orm';
 import { getDb } from '$lib/server/db';
 import { backupRuns, type BackupRun } from '$lib/server/db/schema/backups';
 import type { Query } from './facts';
+import { backupConfig } from './config';
 
 export type Attempt = Omit<BackupRun, 'id' | 'finishedAt'> & { finishedAt?: Date };
 
@@ -53,9 +54,14 @@ export type BackupHealth =
 	| { kind: 'stale'; lastSuccessAt: Date | null }
 	| null;
 
-/** What the lead's Today says about backups: the newest attempt failed, or none succeeded for two days. */
+/**
+ * What the lead's Today says about backups: the newest attempt failed, or none succeeded for two
+ * days. Before the schedule's first attempt (a minute after start) there is nothing to say yet;
+ * with the schedule off, no backup at all is worth saying.
+ */
 export async function health(now: Date): Promise<BackupHealth> {
 	const [newest] = await recent(1);
+	if (!newest && backupConfig().BACKUP_SCHEDULE === 'on') return null;
 	const ok = await lastSuccess();
 	const lastSuccessAt = ok?.finishedAt ?? null;
 	if (newest?.status === 'failed')

@@ -38,8 +38,14 @@ afterAll(async () => {
 });
 
 describe("the lead's Today line", () => {
-	it('asks for a first backup when there has been none', async () => {
-		expect(await health(now)).toEqual({ kind: 'stale', lastSuccessAt: null });
+	it('says nothing before the schedule’s first attempt, and asks for a backup when the schedule is off', async () => {
+		expect(await health(now)).toBeNull();
+		process.env.BACKUP_SCHEDULE = 'off';
+		try {
+			expect(await health(now)).toEqual({ kind: 'stale', lastSuccessAt: null });
+		} finally {
+			delete process.env.BACKUP_SCHEDULE;
+		}
 	});
 
 	it('says nothing while the newest backup succeeded within two days', async () => {
