@@ -367,3 +367,6 @@ export const jobPatch = z.union([
 	z.object({ consentToOpen: z.literal(true) }).strict()
 ]);
 export type JobPatch = z.infer<typeof jobPatch>;
+
+/** Today's "Take it" row form: one per unassigned job, id `take-<job id>`. */
+export const takeJob = z.object({ jobId: z.uuid({ error: 'Choose a job to take.' }) });

@@ -1,12 +1,14 @@
 import { fail } from '@sveltejs/kit';
-import { z } from 'zod';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { requireRole, requireUser } from '$lib/server/guards';
-import { actionFailure } from '$lib/server/http';
+import { act } from '$lib/server/http';
 import * as today from '$lib/server/today/queries';
 import * as shop from '$lib/server/today/lead';
 import * as settings from '$lib/server/settings/queries';
 import * as flowHealth from '$lib/server/flow-health/queries';
 import * as backups from '$lib/server/backup/queries';
+import { takeJob } from '$lib/schemas/job';
 import { historyStatus } from '$lib/server/demo/history-status';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -70,20 +72,19 @@ export const load: PageServerLoad = async (event) => {
 	};
 };
 
-const jobId = z.object({ jobId: z.uuid() });
+const takeAdapter = zod4(takeJob);
 
 export const actions: Actions = {
 	/** Take an unassigned job: it becomes mine unless someone took it first. */
 	take: async (event) => {
 		const user = requireRole(event, 'technician');
-		const parsed = jobId.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { action: 'take', message: 'Choose a job to take.' });
-		try {
-			const job = await today.take(parsed.data.jobId, user.id);
-			return { action: 'take', taken: job.id, message: 'The job is yours: it is now in your queue.' };
-		} catch (e) {
-			return actionFailure(e, { action: 'take', jobId: parsed.data.jobId });
-		}
+		const body = await event.request.formData();
+		const form = await superValidate(body, takeAdapter, { id: `take-${String(body.get('jobId') ?? '')}` });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			await today.take(form.data.jobId, user.id);
+			return message(form, 'The job is yours: it is now in your queue.');
+		});
 	},
 	/** The overturned verdicts were seen: from now on the list starts here. */
 	seenOverturned: async (event) => {
