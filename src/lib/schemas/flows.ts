@@ -11,3 +11,11 @@ export const versionRef = z.object({
 		.max(1_000_000, 'No flow has that many versions.')
 });
 export type VersionRef = z.infer<typeof versionRef>;
+
+/** The library's "Retire vN" row form: one per published version, id `retire-<version>`. */
+export const retireVersion = z.object({
+	version: z.coerce
+		.number({ error: 'Choose a version to retire.' })
+		.int('Choose a version to retire.')
+		.min(1, 'Choose a version to retire.')
+});

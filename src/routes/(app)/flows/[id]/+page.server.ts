@@ -1,9 +1,12 @@
 import { error, fail } from '@sveltejs/kit';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { z } from 'zod';
 import { kebabId } from '$lib/flows/schema';
 import { hasRole } from '$lib/roles';
 import { requireRole, requireUser } from '$lib/server/guards';
-import { actionFailure } from '$lib/server/http';
+import { act } from '$lib/server/http';
+import { retireVersion } from '$lib/schemas/flows';
 import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as staff from '$lib/server/staff/queries';
@@ -47,20 +50,20 @@ export const load: PageServerLoad = async (event) => {
 	};
 };
 
-const retireForm = z.object({ version: z.coerce.number().int().min(1) });
+const retireAdapter = zod4(retireVersion);
 
 export const actions: Actions = {
 	retire: async (event) => {
 		const user = requireRole(event, 'senior');
-		const parsed = retireForm.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { message: 'Choose a version to retire.' });
-		try {
-			const retired = await authoring.retire(user, event.params.id, parsed.data.version);
-			return {
-				message: `Version ${retired.version} is retired: no new runs start on it; runs under way finish on it.`
-			};
-		} catch (e) {
-			return actionFailure(e);
-		}
+		const body = await event.request.formData();
+		const form = await superValidate(body, retireAdapter, { id: `retire-${String(body.get('version') ?? '')}` });
+		if (!form.valid) return fail(400, { form });
+		return act(form, async () => {
+			const retired = await authoring.retire(user, event.params.id, form.data.version);
+			return message(
+				form,
+				`Version ${retired.version} is retired: no new runs start on it; runs under way finish on it.`
+			);
+		});
 	}
 };

@@ -40,12 +40,17 @@ beforeAll(async () => {
 describe('retire action', () => {
 	it('is refused to a technician, refuses bad input, and retires a published version once', async () => {
 		await expect(actions.retire(event(tech, '1'))).rejects.toMatchObject({ status: 403 });
-		expect(await actions.retire(event(lead, 'one'))).toMatchObject({ status: 400 });
+		expect(await actions.retire(event(lead, 'one'))).toMatchObject({
+			status: 400,
+			data: { form: { valid: false, errors: { version: ['Choose a version to retire.'] } } }
+		});
+		expect((await library.getVersion('no-sound-after-liquid', 1))!.status).toBe('published');
 		expect(await actions.retire(event(lead, '1'))).toMatchObject({
-			message: expect.stringMatching(/Version 1 is retired/)
+			form: { id: 'retire-1', message: expect.stringMatching(/Version 1 is retired/) }
 		});
 		expect((await library.getVersion('no-sound-after-liquid', 1))!.status).toBe('retired');
-		expect(await actions.retire(event(lead, '1'))).toMatchObject({ status: 409 });
+		const again = await actions.retire(event(lead, '1'));
+		expect(again).toMatchObject({ status: 409, data: { form: { errors: { _errors: [expect.any(String)] } } } });
 		expect(await actions.retire(event(lead, '7'))).toMatchObject({ status: 404 });
 	});
 });
