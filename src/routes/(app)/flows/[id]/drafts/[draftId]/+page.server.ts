@@ -1,6 +1,6 @@
 import { error, fail, redirect } from '@sveltejs/kit';
-import { z } from 'zod';
-import { text } from '$lib/schemas/text';
+import { superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { checkFlow } from '$lib/flows/check';
 import { diffVersions } from '$lib/flows/diff';
 import { requireRole } from '$lib/server/guards';
@@ -8,8 +8,8 @@ import * as authoring from '$lib/server/flows/authoring';
 import * as flowLibrary from '$lib/server/flows/queries';
 import * as staff from '$lib/server/staff/queries';
 import type { Actions, PageServerLoad } from './$types';
-import { actionFailure } from '$lib/server/http';
-import { draftParams } from './schema';
+import { actionFailure, formFailure } from '$lib/server/http';
+import { draftParams, sendBackForm } from './schema';
 
 async function draftOf(params: unknown) {
 	const p = draftParams.safeParse(params);
@@ -95,20 +95,14 @@ export const actions: Actions = {
 	sendBack: async (event) => {
 		const user = requireRole(event, 'senior');
 		const draft = await draftOf(event.params);
-		const form = sendBackForm.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!form.success) return fail(400, { message: form.error.issues[0].message, comment: '', problems: 0 });
+		const form = await superValidate(event.request, zod4(sendBackForm), { id: 'send-back' });
+		if (!form.valid) return fail(400, { form });
 		try {
 			await authoring.sendBack({ id: user.id, role: user.role }, draft.id, form.data.comment);
 		} catch (e) {
-			return actionFailure(e, { comment: form.data.comment, problems: 0 });
+			return formFailure(form, e);
 		}
 		redirect(303, `/flows/${draft.flowId}?sentBack=1`);
 	}
 };
 
-const sendBackForm = z.object({
-	comment: text('The comment')
-		.trim()
-		.min(1, 'Say what needs changing, so the author knows.')
-		.max(4000, 'Keep the comment under 4000 characters.')
-});

@@ -144,15 +144,25 @@ describe('review route', () => {
 			status: 403,
 			data: { message: expect.stringMatching(/You wrote this draft, so you cannot approve it/) }
 		});
-		expect(await post(ana, 'sendBack', { comment: 'Looks fine to me' })).toMatchObject({ status: 403 });
+		expect(await post(ana, 'sendBack', { comment: 'Looks fine to me' })).toMatchObject({
+			status: 403,
+			data: {
+				form: {
+					id: 'send-back',
+					data: { comment: 'Looks fine to me' },
+					errors: { _errors: [expect.stringMatching(/You wrote this draft/)] }
+				}
+			}
+		});
 		expect((await load(ana)).draft.status).toBe('in-review');
 	});
 
 	it('sends back with a comment the author then sees; an empty comment is refused', async () => {
 		expect(await post(ben, 'sendBack', { comment: '   ' })).toMatchObject({
 			status: 400,
-			data: { message: expect.stringMatching(/Say what needs changing/) }
+			data: { form: { valid: false, errors: { comment: [expect.stringMatching(/Say what needs changing/)] } } }
 		});
+		expect((await load(ana)).draft.status).toBe('in-review');
 		await expect(
 			post(ben, 'sendBack', { comment: 'Add the flux-fumes caution to the cleaning step.' })
 		).rejects.toMatchObject({ status: 303, location: `/flows/${FLOW}?sentBack=1` });

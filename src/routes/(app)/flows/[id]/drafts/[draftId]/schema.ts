@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { storableJson } from '$lib/schemas/text';
+import { storableJson, text } from '$lib/schemas/text';
 import { MAX_FLOW_CHARS } from '$lib/flows/parse';
 import { kebabId } from '$lib/flows/schema';
 
@@ -16,3 +16,11 @@ export const saveBody = z.object({
 
 /** Bytes an autosave may send: the largest flow file allowed, with room for JSON's quoting. */
 export const MAX_SAVE_BYTES = MAX_FLOW_CHARS * 2;
+
+/** The reviewer's "Send back to the author" superform (id `send-back`): the note the author reads. */
+export const sendBackForm = z.object({
+	comment: text('The comment')
+		.trim()
+		.min(1, 'Say what needs changing, so the author knows.')
+		.max(4000, 'Keep the comment under 4000 characters.')
+});
