@@ -56,7 +56,9 @@ export const actions: Actions = {
 	retire: async (event) => {
 		const user = requireRole(event, 'senior');
 		const body = await event.request.formData();
-		const form = await superValidate(body, retireAdapter, { id: `retire-${String(body.get('version') ?? '')}` });
+		const form = await superValidate(body, retireAdapter, {
+			id: `retire-${String(body.get('version') ?? '')}`
+		});
 		if (!form.valid) return fail(400, { form });
 		return act(form, async () => {
 			const retired = await authoring.retire(user, event.params.id, form.data.version);

@@ -50,7 +50,10 @@ describe('retire action', () => {
 		});
 		expect((await library.getVersion('no-sound-after-liquid', 1))!.status).toBe('retired');
 		const again = await actions.retire(event(lead, '1'));
-		expect(again).toMatchObject({ status: 409, data: { form: { errors: { _errors: [expect.any(String)] } } } });
+		expect(again).toMatchObject({
+			status: 409,
+			data: { form: { errors: { _errors: [expect.any(String)] } } }
+		});
 		expect(await actions.retire(event(lead, '7'))).toMatchObject({ status: 404 });
 	});
 });

@@ -69,16 +69,28 @@ describe('new flow page', () => {
 	it('refuses a bad id, a short title and a taken id, keeping what was typed', async () => {
 		expect(await blank(ana, { id: 'Not Kebab', title: 'Ok title' })).toMatchObject({
 			status: 400,
-			data: { blank: { id: 'Not Kebab', title: 'Ok title', errors: { id: expect.any(String) } } }
+			data: {
+				form: {
+					id: 'blank',
+					data: { id: 'Not Kebab', title: 'Ok title' },
+					errors: { id: [expect.any(String)] }
+				}
+			}
 		});
 		expect(await blank(ana, { id: 'fine-id', title: 'x' })).toMatchObject({
 			status: 400,
-			data: { blank: { errors: { title: expect.stringMatching(/at least 3/) } } }
+			data: { form: { errors: { title: [expect.stringMatching(/at least 3/)] } } }
 		});
 		expect(await blank(ana, { id: 'no-power-after-liquid', title: 'Again' })).toMatchObject({
 			status: 409,
-			data: { blank: { errors: { id: expect.stringMatching(/already exists/) } } }
+			data: {
+				form: {
+					data: { id: 'no-power-after-liquid', title: 'Again' },
+					errors: { id: [expect.stringMatching(/already exists/)] }
+				}
+			}
 		});
+		expect(await library.openDrafts('fine-id')).toEqual([]);
 	});
 
 	it('imports an uploaded file as a draft of its flow and says how many problems it has', async () => {
@@ -93,15 +105,19 @@ describe('new flow page', () => {
 		const broken = shipped.replace('title:', 'title: !!js/function "boom" #');
 		const res = (await upload(ana, { text: broken })) as {
 			status: number;
-			data: { upload: { text: string; problems: unknown[]; message: string } };
+			data: {
+				form: { id: string; data: { text: string }; errors: { _errors: string[] } };
+				problems: unknown[];
+			};
 		};
 		expect(res.status).toBe(400);
-		expect(res.data.upload.text).toBe(broken);
-		expect(res.data.upload.message).toMatch(/nothing was imported/);
-		expect(res.data.upload.problems.length).toBeGreaterThan(0);
+		expect(res.data.form.id).toBe('import');
+		expect(res.data.form.data.text).toBe(broken);
+		expect(res.data.form.errors._errors[0]).toMatch(/nothing was imported/);
+		expect(res.data.problems.length).toBeGreaterThan(0);
 		expect(await upload(ana, { text: '  ' })).toMatchObject({
 			status: 400,
-			data: { upload: { message: expect.stringMatching(/Choose a/) } }
+			data: { form: { errors: { _errors: [expect.stringMatching(/Choose a/)] } } }
 		});
 	});
 
@@ -109,7 +125,7 @@ describe('new flow page', () => {
 		const big = new File(['a'.repeat(MAX_UPLOAD_BYTES + 1)], 'big.flow.yaml');
 		expect(await upload(ana, { file: big })).toMatchObject({
 			status: 413,
-			data: { upload: { message: expect.stringMatching(/at most/) } }
+			data: { form: { errors: { _errors: [expect.stringMatching(/at most/)] } } }
 		});
 		const declared = (actions.import as Act)(
 			event(ana, form({ text: 'x' }), { 'content-length': String(MAX_UPLOAD_BYTES * 2) })

@@ -16,3 +16,9 @@ export const blankForm = z.object({
 		.min(3, 'Give the flow a title of at least 3 characters.')
 		.max(200, 'Keep the title under 200 characters.')
 });
+
+/**
+ * The import form's pasted text (superform id `import`). The file beside it is read from the
+ * posted FormData by the action itself: it is checked for size before it is read.
+ */
+export const importForm = z.object({ text: z.string() });

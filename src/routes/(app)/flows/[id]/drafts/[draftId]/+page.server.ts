@@ -105,4 +105,3 @@ export const actions: Actions = {
 		redirect(303, `/flows/${draft.flowId}?sentBack=1`);
 	}
 };
-

@@ -160,7 +160,9 @@ describe('review route', () => {
 	it('sends back with a comment the author then sees; an empty comment is refused', async () => {
 		expect(await post(ben, 'sendBack', { comment: '   ' })).toMatchObject({
 			status: 400,
-			data: { form: { valid: false, errors: { comment: [expect.stringMatching(/Say what needs changing/)] } } }
+			data: {
+				form: { valid: false, errors: { comment: [expect.stringMatching(/Say what needs changing/)] } }
+			}
 		});
 		expect((await load(ana)).draft.status).toBe('in-review');
 		await expect(
