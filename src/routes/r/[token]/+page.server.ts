@@ -1,14 +1,15 @@
 import { fail, type RequestEvent } from '@sveltejs/kit';
 import type { ReportLink } from '$lib/server/db/schema/quotes';
-import { z } from 'zod';
-import { text } from '$lib/schemas/text';
+import { message, setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { openLink } from '$lib/server/reports/gate';
 import { touch } from '$lib/server/reports/links';
 import * as report from '$lib/server/reports/report';
 import * as quotes from '$lib/server/quotes/queries';
 import { startPayment } from '$lib/server/reports/customer';
-import { actionFailure, isRuleError } from '$lib/server/http';
+import { act, formFailure, isRuleError } from '$lib/server/http';
 import type { Actions, PageServerLoad } from './$types';
+import { decisionForm, payForm, type PayKind } from './schema';
 
 // Public (allow-listed in guards.spec.ts): the customer has no account. Every handler opens with
 // openLink(event), which rate-limits the address and checks the token (live, unexpired, one job).
@@ -29,27 +30,20 @@ export const load: PageServerLoad = async (event) => {
 	};
 };
 
-const decisionForm = z.object({
-	quoteId: z.uuid('Reload the page.'),
-	name: text('Your name').max(200).default('')
-});
-const payForm = z.object({ quoteId: z.uuid('Reload the page.'), kind: z.enum(['fee', 'rest']) });
+const decisionAdapter = zod4(decisionForm);
+const payAdapter = zod4(payForm);
 
 async function decide(event: RequestEvent, link: ReportLink, decision: 'approved' | 'declined') {
-	const parsed = decisionForm.safeParse(Object.fromEntries(await event.request.formData()));
-	if (!parsed.success)
-		return fail(400, { action: decision, ok: false, message: parsed.error.issues[0].message });
-	try {
-		const { changed } = await quotes.decide(link.jobId, parsed.data.quoteId, decision, parsed.data.name);
+	const form = await superValidate(event.request, decisionAdapter, { id: 'decision' });
+	if (!form.valid) return fail(400, { form });
+	return act(form, async () => {
+		const { changed } = await quotes.decide(link.jobId, form.data.quoteId, decision, form.data.name);
 		const words = decision === 'approved' ? 'approved' : 'declined';
-		return {
-			action: decision,
-			ok: true,
-			message: changed ? `Thank you: the quote is ${words}.` : `You had already ${words} this quote.`
-		};
-	} catch (e) {
-		return actionFailure(e, { action: decision, ok: false });
-	}
+		return message(
+			form,
+			changed ? `Thank you: the quote is ${words}.` : `You had already ${words} this quote.`
+		);
+	});
 }
 
 export const actions: Actions = {
@@ -64,25 +58,28 @@ export const actions: Actions = {
 	/** Answers with the checkout address; the page goes there (CSP form-action keeps forms on this origin). */
 	pay: async (event) => {
 		const link = await openLink(event);
-		const parsed = payForm.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { action: 'pay', ok: false, message: 'Choose what to pay.' });
+		const form = await superValidate(event.request, payAdapter, { id: 'pay' });
+		if (!form.valid) return fail(400, { form });
 		try {
 			const checkout = await startPayment(
 				link.jobId,
-				parsed.data.quoteId,
-				parsed.data.kind,
+				form.data.quoteId,
+				form.data.kind as PayKind,
 				`/r/${event.params.token}`
 			);
-			return { action: 'pay', ok: true, message: 'Opening the payment page…', checkoutUrl: checkout.url };
+			return { ...message(form, 'Opening the payment page…'), checkoutUrl: checkout.url };
 		} catch (e) {
 			// The customer is told what they can do, not how the shop's server is set up.
 			if (isRuleError(e, 'payments-not-configured'))
-				return fail(503, {
-					action: 'pay',
-					ok: false,
-					message: 'Online payment is not available at the moment; you can pay at the counter.'
-				});
-			return actionFailure(e, { action: 'pay', ok: false });
+				return setError(
+					form,
+					'',
+					'Online payment is not available at the moment; you can pay at the counter.',
+					{
+						status: 503
+					}
+				);
+			return formFailure(form, e);
 		}
 	}
 };
