@@ -2,8 +2,8 @@ import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { text } from '$lib/schemas/text';
 import { requireRole } from '$lib/server/guards';
-import { act, actionFailure } from '$lib/server/http';
-import { message, superValidate } from 'sveltekit-superforms';
+import { act } from '$lib/server/http';
+import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import * as jobs from '$lib/server/jobs/queries';
 import { jobRunsSection } from './runs-section';
@@ -47,6 +47,8 @@ export const load: PageServerLoad = async (event) => {
 			errors: false
 		}),
 		consentForm: await superValidate(consentAdapter, { id: 'consent' }),
+		preRepairForm: await superValidate(preRepairAdapter, { id: 'preRepair' }),
+		sendReportForm: await quoteActions.sendReportFormFor(),
 		dataOutcomeForm: await superValidate(dataOutcomeAdapter, { id: 'dataOutcome' })
 	};
 };
@@ -61,15 +63,13 @@ const assignForm = z.object({
 });
 // Consent posts nothing but the button; a superform still carries its message and refusal.
 const consentForm = z.object({});
+// The pre-repair test is its own section (checklists/preRepair.ts), read beside an empty superform
+// that carries its message and refusal, as intake reads it beside the intake schema.
+const preRepairAdapter = zod4(z.object({}));
 const statusAdapter = zod4(statusForm);
 const assignAdapter = zod4(assignForm);
 const consentAdapter = zod4(consentForm);
 const dataOutcomeAdapter = zod4(dataOutcomeForm);
-
-/** Each action answers `{ action, ok, message }` so the page can say what happened beside the control. */
-function refused(action: string, status: number, message: string) {
-	return fail(status, { action, ok: false, message });
-}
 
 export const actions: Actions = {
 	status: async (event) => {
@@ -99,17 +99,15 @@ export const actions: Actions = {
 
 	preRepair: async (event) => {
 		const user = requireRole(event, 'technician');
-		const parsed = preRepair.fromForm(await event.request.formData());
-		if (!parsed)
-			return refused('preRepair', 400, 'The pre-repair test was not in the form; reload the page.');
-		if (!parsed.success)
-			return refused('preRepair', 400, parsed.error.issues[0]?.message ?? 'Check the pre-repair test.');
-		try {
-			await preRepair.save(event.params.id, parsed.data, user.id);
-			return { action: 'preRepair', ok: true, message: 'Pre-repair test saved.' };
-		} catch (e) {
-			return actionFailure(e, { action: 'preRepair', ok: false });
-		}
+		const body = await event.request.formData();
+		const form = await superValidate(body, preRepairAdapter, { id: 'preRepair' });
+		const pre = preRepair.fromForm(body);
+		if (!pre) return setError(form, '', 'The pre-repair test was not in the form; reload the page.');
+		if (!pre.success) return setError(form, '', pre.error.issues[0]?.message ?? 'Check the pre-repair test.');
+		return act(form, async () => {
+			await preRepair.save(event.params.id, pre.data, user.id);
+			return message(form, 'Pre-repair test saved.');
+		});
 	},
 
 	// ── Customer side (./customer-actions.ts) ──

@@ -12,7 +12,7 @@ import type { QuoteLine } from '$lib/domain/money';
 import type { CustomerSection } from './customer-section';
 import { formatMoney } from '$lib/domain/money';
 import * as refunds from '$lib/server/payments/refunds';
-import { act, actionFailure } from '$lib/server/http';
+import { act } from '$lib/server/http';
 import * as links from '$lib/server/reports/links';
 import { sendReport as send } from '$lib/server/reports/customer';
 
@@ -52,29 +52,35 @@ export async function saveQuote(event: RequestEvent<{ id: string }>, user: User)
 	});
 }
 
+// "Send report" posts nothing but the button; a superform still carries its message and refusal.
+const sendReportAdapter = zod4(z.object({}));
+/** "Revoke" on one live link: a row superform, id `revokeLink-<link id>`. */
+const revokeLinkAdapter = zod4(z.object({ linkId: z.uuid('Choose a link.') }));
+
+/** The sendReport form as the page opens it. */
+export const sendReportFormFor = () => superValidate(sendReportAdapter, { id: 'sendReport' });
+
+/** Answers with the private link beside the form: shown once, to copy into a text message. */
 export async function sendReport(event: RequestEvent<{ id: string }>, user: User) {
-	try {
+	const form = await superValidate(event.request, sendReportAdapter, { id: 'sendReport' });
+	return act(form, async () => {
 		const { url } = await send(user.id, event.params.id);
-		return {
-			action: 'sendReport',
-			ok: true,
-			message: 'Report sent: the e-mail is in the Outbox queue.',
-			url
-		};
-	} catch (e) {
-		return actionFailure(e, { action: 'sendReport', ok: false });
-	}
+		return { ...message(form, 'Report sent: the e-mail is in the Outbox queue.'), reportUrl: url };
+	});
 }
 
 export async function revokeLink(event: RequestEvent<{ id: string }>, user: User) {
-	const parsed = z.object({ linkId: z.uuid() }).safeParse(Object.fromEntries(await event.request.formData()));
-	if (!parsed.success) return fail(400, { action: 'revokeLink', ok: false, message: 'Choose a link.' });
-	const done = await links.revoke(event.params.id, parsed.data.linkId, user.id);
-	return {
-		action: 'revokeLink',
-		ok: true,
-		message: done ? 'Link revoked: it now shows “no longer valid”.' : 'That link was already closed.'
-	};
+	const body = await event.request.formData();
+	const id = `revokeLink-${String(body.get('linkId') ?? '')}`;
+	const form = await superValidate(body, revokeLinkAdapter, { id });
+	if (!form.valid) return fail(400, { form });
+	return act(form, async () => {
+		const done = await links.revoke(event.params.id, form.data.linkId, user.id);
+		return message(
+			form,
+			done ? 'Link revoked: it now shows “no longer valid”.' : 'That link was already closed.'
+		);
+	});
 }
 
 const refundAdapter = zod4(refundForm);
