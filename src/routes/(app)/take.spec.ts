@@ -20,7 +20,7 @@ async function take(user: Member, id: string) {
 	const out = await (actions.take as Act)(event);
 	return (
 		isActionFailure(out)
-			? { status: out.status, ...(out.data as object) }
+			? { status: out.status, ...(out.data as unknown as object) }
 			: { status: 200, ...(out as object) }
 	) as {
 		status: number;

@@ -31,7 +31,7 @@ async function post(action: 'test' | 'retry', fields: Record<string, string>) {
 	const out = await (actions[action] as Act)(event);
 	return (
 		isActionFailure(out)
-			? { status: out.status, ...(out.data as object) }
+			? { status: out.status, ...(out.data as unknown as object) }
 			: { status: 200, ...(out as object) }
 	) as {
 		status: number;

@@ -35,7 +35,7 @@ async function post(action: 'preRepair' | 'sendReport' | 'revokeLink', fields: R
 	const out = await (actions[action] as Act)(event);
 	return (
 		isActionFailure(out)
-			? { status: out.status, ...(out.data as object) }
+			? { status: out.status, ...(out.data as unknown as object) }
 			: { status: 200, ...(out as object) }
 	) as Answer;
 }
