@@ -1,8 +1,7 @@
-import { isActionFailure } from '@sveltejs/kit';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import * as jobs from '$lib/server/jobs/queries';
-import { makeEvent } from '$lib/server/testing/events';
 import { intake, member, type Member } from '$lib/server/testing/world';
+import { postAction } from '$lib/server/testing/actions';
 import { actions } from './+page.server';
 
 // Today's "Take it" through its row superform (id `take-<job id>`), on the in-memory database.
@@ -10,22 +9,8 @@ let first: Member;
 let second: Member;
 let jobId: string;
 
-type Form = { id: string; errors: { jobId?: string[]; _errors?: string[] }; message?: string };
-type Act = (e: unknown) => Promise<unknown>;
-
-async function take(user: Member, id: string) {
-	const body = new FormData();
-	body.set('jobId', id);
-	const event = makeEvent('/?/take', { method: 'POST', body, locals: { user }, routeId: '/(app)' });
-	const out = await (actions.take as Act)(event);
-	return (
-		isActionFailure(out)
-			? { status: out.status, ...(out.data as unknown as object) }
-			: { status: 200, ...(out as object) }
-	) as {
-		status: number;
-		form: Form;
-	};
+function take(user: Member, id: string) {
+	return postAction(actions.take, '/?/take', { jobId: id }, { locals: { user }, routeId: '/(app)' });
 }
 
 beforeAll(async () => {

@@ -1,42 +1,20 @@
-import { isActionFailure } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import { getDb } from '$lib/server/db';
 import { outgoingMail } from '$lib/server/db/schema/mail';
-import { makeEvent } from '$lib/server/testing/events';
 import { member, type Member } from '$lib/server/testing/world';
+import { postAction } from '$lib/server/testing/actions';
 import { actions } from './+page.server';
 
 // The Outbox's "Send a test message" (send-test) and "Retry now" (retry-<mail id>) superforms, on
 // the in-memory database: each answer is the form with its message or refusal, and the queue shows it.
 let lead: Member;
 
-type Form = {
-	id: string;
-	data: Record<string, unknown>;
-	errors: Record<string, string[] | undefined>;
-	message?: string;
-};
-type Act = (e: unknown) => Promise<unknown>;
-
-async function post(action: 'test' | 'retry', fields: Record<string, string>) {
-	const body = new FormData();
-	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	const event = makeEvent(`/outbox?/${action}`, {
-		method: 'POST',
-		body,
+function post(action: 'test' | 'retry', fields: Record<string, string>) {
+	return postAction(actions[action], `/outbox?/${action}`, fields, {
 		locals: { user: lead },
 		routeId: '/(app)/outbox'
 	});
-	const out = await (actions[action] as Act)(event);
-	return (
-		isActionFailure(out)
-			? { status: out.status, ...(out.data as unknown as object) }
-			: { status: 200, ...(out as object) }
-	) as {
-		status: number;
-		form: Form;
-	};
 }
 const mailsTo = async (to: string) =>
 	(await getDb()).select().from(outgoingMail).where(eq(outgoingMail.to, to));

@@ -1,8 +1,7 @@
-import { isActionFailure } from '@sveltejs/kit';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
-import { makeEvent } from '$lib/server/testing/events';
 import { member, type Member } from '$lib/server/testing/world';
 import * as staff from '$lib/server/staff/queries';
+import { postAction } from '$lib/server/testing/actions';
 import { actions } from './+page.server';
 
 // The staff rows' forms through superforms (one per member and action, id `<action>-<member id>`),
@@ -10,28 +9,11 @@ import { actions } from './+page.server';
 let lead: Member;
 let tech: Member;
 
-type Form = {
-	id: string;
-	valid: boolean;
-	data: Record<string, unknown>;
-	errors: Record<string, string[] | undefined> & { _errors?: string[] };
-	message?: string;
-};
-type Act = (e: unknown) => Promise<unknown>;
-
-async function post(action: 'role' | 'disabled' | 'reset', fields: Record<string, string>) {
-	const body = new FormData();
-	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	const event = makeEvent(`/staff?/${action}`, {
-		method: 'POST',
-		body,
+function post(action: 'role' | 'disabled' | 'reset', fields: Record<string, string>) {
+	return postAction(actions[action], `/staff?/${action}`, fields, {
 		locals: { user: lead },
 		routeId: '/(app)/staff'
 	});
-	const out = await (actions[action] as Act)(event);
-	return isActionFailure(out)
-		? { status: out.status, form: (out.data as unknown as { form: Form }).form }
-		: { status: 200, form: (out as { form: Form }).form };
 }
 
 beforeAll(async () => {

@@ -1,10 +1,9 @@
-import { isActionFailure } from '@sveltejs/kit';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import * as jobs from '$lib/server/jobs/queries';
 import * as quotes from '$lib/server/quotes/queries';
 import { sendReport } from '$lib/server/reports/customer';
-import { makeEvent } from '$lib/server/testing/events';
 import { intake, member } from '$lib/server/testing/world';
+import { postAction } from '$lib/server/testing/actions';
 import { actions } from './+page.server';
 
 // The customer's approve/decline and pay forms through their superforms, on the in-memory
@@ -14,32 +13,11 @@ let token: string;
 let jobId: string;
 let quoteId: string;
 
-type Form = {
-	id: string;
-	data: Record<string, unknown>;
-	errors: Record<string, string[] | undefined> & { _errors?: string[] };
-	message?: string;
-};
-type Act = (e: unknown) => Promise<unknown>;
-
-async function post(action: 'approve' | 'decline' | 'pay', fields: Record<string, string>, t = token) {
-	const body = new FormData();
-	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	const event = makeEvent(`/r/${t}?/${action}`, {
-		method: 'POST',
-		body,
+function post(action: 'approve' | 'decline' | 'pay', fields: Record<string, string>, t = token) {
+	return postAction(actions[action], `/r/${t}?/${action}`, fields, {
 		params: { token: t },
 		routeId: '/r/[token]'
 	});
-	const out = await (actions[action] as Act)(event);
-	return (
-		isActionFailure(out)
-			? { status: out.status, ...(out.data as unknown as object) }
-			: { status: 200, ...(out as object) }
-	) as {
-		status: number;
-		form: Form;
-	};
 }
 const stored = async () => (await quotes.listForJob(jobId)).find((q) => q.id === quoteId)!;
 

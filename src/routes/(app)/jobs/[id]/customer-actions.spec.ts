@@ -1,10 +1,9 @@
-import { isActionFailure } from '@sveltejs/kit';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import * as jobs from '$lib/server/jobs/queries';
 import * as links from '$lib/server/reports/links';
 import * as preRepair from '$lib/server/checklists/preRepair';
-import { makeEvent } from '$lib/server/testing/events';
 import { intake, member, type Member } from '$lib/server/testing/world';
+import { postAction } from '$lib/server/testing/actions';
 import { actions } from './+page.server';
 
 // The job page's pre-repair test, "Send report" and "Revoke" through their superforms, on the
@@ -12,32 +11,12 @@ import { actions } from './+page.server';
 let tech: Member;
 let jobId: string;
 
-type Form = {
-	id: string;
-	valid: boolean;
-	data: Record<string, unknown>;
-	errors: Record<string, string[] | undefined> & { _errors?: string[] };
-	message?: string;
-};
-type Act = (e: unknown) => Promise<unknown>;
-type Answer = { status: number; form: Form; reportUrl?: string };
-
 async function post(action: 'preRepair' | 'sendReport' | 'revokeLink', fields: Record<string, string>) {
-	const body = new FormData();
-	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	const event = makeEvent(`/jobs/${jobId}?/${action}`, {
-		method: 'POST',
-		body,
+	return postAction<{ reportUrl?: string }>(actions[action], `/jobs/${jobId}?/${action}`, fields, {
 		params: { id: jobId },
 		locals: { user: tech },
 		routeId: '/(app)/jobs/[id]'
 	});
-	const out = await (actions[action] as Act)(event);
-	return (
-		isActionFailure(out)
-			? { status: out.status, ...(out.data as unknown as object) }
-			: { status: 200, ...(out as object) }
-	) as Answer;
 }
 
 beforeAll(async () => {

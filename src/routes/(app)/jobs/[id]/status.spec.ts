@@ -1,8 +1,8 @@
-import { isActionFailure } from '@sveltejs/kit';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import * as jobs from '$lib/server/jobs/queries';
 import { makeEvent } from '$lib/server/testing/events';
 import { intake, member, type Member } from '$lib/server/testing/world';
+import { postAction, type SpecForm } from '$lib/server/testing/actions';
 import { actions, load } from './+page.server';
 
 // The job page's status, technician and consent forms through superforms, on the in-memory
@@ -11,29 +11,12 @@ let tech: Member;
 let other: Member;
 let jobId: string;
 
-type Form = {
-	id: string;
-	valid: boolean;
-	data: Record<string, unknown>;
-	errors: Record<string, string[] | undefined> & { _errors?: string[] };
-	message?: string;
-};
-type Act = (e: unknown) => Promise<unknown>;
-
-async function post(action: 'status' | 'assign' | 'consent' | 'dataOutcome', fields: Record<string, string>) {
-	const body = new FormData();
-	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	const event = makeEvent(`/jobs/${jobId}?/${action}`, {
-		method: 'POST',
-		body,
+function post(action: 'status' | 'assign' | 'consent' | 'dataOutcome', fields: Record<string, string>) {
+	return postAction(actions[action], `/jobs/${jobId}?/${action}`, fields, {
 		params: { id: jobId },
 		locals: { user: tech },
 		routeId: '/(app)/jobs/[id]'
 	});
-	const out = await (actions[action] as Act)(event);
-	return isActionFailure(out)
-		? { status: out.status, form: (out.data as unknown as { form: Form }).form }
-		: { status: 200, form: (out as { form: Form }).form };
 }
 
 beforeAll(async () => {
@@ -47,7 +30,7 @@ describe('job page forms', () => {
 	it('opens with an empty note and the job’s technician', async () => {
 		const page = (await load(
 			makeEvent(`/jobs/${jobId}`, { params: { id: jobId }, locals: { user: tech } }) as never
-		)) as { statusForm: Form; assignForm: Form };
+		)) as { statusForm: SpecForm; assignForm: SpecForm };
 		expect(page.statusForm.data).toMatchObject({ note: '' });
 		expect(page.assignForm.data).toEqual({ technicianId: '' });
 	});
@@ -84,7 +67,7 @@ describe('job page forms', () => {
 	it('records what became of the data, keeping the note when no outcome is chosen', async () => {
 		const page = (await load(
 			makeEvent(`/jobs/${jobId}`, { params: { id: jobId }, locals: { user: tech } }) as never
-		)) as { dataOutcomeForm: Form };
+		)) as { dataOutcomeForm: SpecForm };
 		expect(page.dataOutcomeForm.data).toEqual({ outcome: '', note: '' }); // nothing pre-selected
 		const none = await post('dataOutcome', { note: 'Copied to the shop drive' });
 		expect(none.status).toBe(400);
