@@ -2,6 +2,7 @@
 import { spawn, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import net from 'node:net';
+import path from 'node:path';
 
 export const median = (xs) => {
 	const s = [...xs].sort((a, b) => a - b);
@@ -28,7 +29,11 @@ export async function startServer({ port, dataDir, build = 'build', env = {} }) 
 	const t0 = performance.now();
 	// BENCH_SERVER_NODE_ARGS (e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof") profiles the server.
 	const nodeArgs = (process.env.BENCH_SERVER_NODE_ARGS ?? '').split(' ').filter(Boolean);
-	const child = spawn(process.execPath, [...nodeArgs, build], {
+	// The server reads drizzle/ and flows/ from its working directory: each build runs from the
+	// project folder it was built in, so an older build meets its own migrations.
+	const folder = path.resolve(build);
+	const child = spawn(process.execPath, [...nodeArgs, folder], {
+		cwd: path.dirname(folder),
 		env: {
 			...process.env,
 			PORT: String(port),
