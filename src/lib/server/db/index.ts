@@ -92,6 +92,9 @@ async function openPglite(dir: string): Promise<Opened> {
 
 function openPostgres(url: string): Opened {
 	const pool = new pg.Pool({ connectionString: url, max: env().DATABASE_POOL_SIZE });
+	// An idle connection the server ends (a restart, an administrator, a dropped database) is
+	// reported here; the pool replaces it. Without a listener it would end the whole process.
+	pool.on('error', (e) => console.error(`[db] an idle PostgreSQL connection ended: ${e.message}`));
 	return { db: drizzlePg({ client: pool, schema }), kind: 'postgres', close: () => pool.end(), pool };
 }
 
