@@ -6,6 +6,7 @@
 export const CAUTION_CODES = [
 	'battery',
 	'hot-air',
+	'opening-heat',
 	'solvent',
 	'uv',
 	'lead',
@@ -41,7 +42,7 @@ export const CAUTIONS: Record<CautionCode, Caution> = {
 	battery: {
 		code: 'battery',
 		words: 'Lithium-ion battery',
-		rule: 'Disconnect the battery before unplugging or heating anything; a bulging, hissing or leaking cell goes into the fire-resistant container.',
+		rule: 'Disconnect the battery as soon as the phone is open, before unplugging anything or heating the board; a bulging, hissing or leaking cell goes into the fire-resistant container.',
 		why: 'Crushing, puncture or heat can start thermal runaway in a lithium-ion cell: fire and toxic gases including hydrogen fluoride (OSHA Safety and Health Information Bulletin, 2019). Disconnecting first is common practice.'
 	},
 	'hot-air': {
@@ -49,6 +50,12 @@ export const CAUTIONS: Record<CautionCode, Caution> = {
 		words: 'Hot air',
 		rule: 'Battery out or disconnected and shielded; keep the nozzle moving and let the board cool before handling.',
 		why: 'Heat is one of the triggers of lithium-ion thermal runaway (OSHA Safety and Health Information Bulletin, 2019). Nozzle and board stay hot enough to burn after the air stops (common practice, no published source).'
+	},
+	'opening-heat': {
+		code: 'opening-heat',
+		words: 'Heat to open',
+		rule: 'The battery is still connected: use the least heat that softens the adhesive (a heat pad, or low hot air kept moving), never aimed at the battery; stop if the phone swells, hisses or smells, and never heat it while alcohol is wet.',
+		why: 'Heat is one of the triggers of lithium-ion thermal runaway (OSHA Safety and Health Information Bulletin, 2019), and a liquid-damaged cell may already be weakened. How much heat the adhesive needs is common practice, no published source.'
 	},
 	solvent: {
 		code: 'solvent',

@@ -130,6 +130,8 @@ describe('cautions the text calls for', () => {
 		['Preheat the board', ['hot-air', 'battery']],
 		['Use hot air at the shield', ['hot-air', 'battery']],
 		['Reflow the connector', ['hot-air', 'battery']],
+		['Open it with the least heat that softens the adhesive', ['opening-heat', 'battery']],
+		['Soften the adhesive on a heat pad', ['opening-heat', 'battery']],
 		['Solder a jumper', ['flux-fume', 'lead', 'eye']],
 		['Add flux and wick the pads', ['flux-fume', 'lead', 'eye']],
 		['Reball the chip', ['flux-fume', 'lead', 'eye']],

@@ -21,6 +21,12 @@ export interface HazardRule {
 
 export const HAZARD_RULES: readonly HazardRule[] = [
 	{ name: 'hot air', pattern: /\bhot[\s-]air\b|\breflow|\bpreheat/i, needs: ['hot-air', 'battery'] },
+	// Opening with heat comes before the battery can be disconnected; "no heat" does not match.
+	{
+		name: 'heat to open',
+		pattern: /\b(?:least|gentle|low)\s+heat\b|\bheat\s+pad\b/i,
+		needs: ['opening-heat', 'battery']
+	},
 	{
 		name: 'solder',
 		pattern: /\b(?:de)?solder|\bflux|\bwick\b|\breball/i,
