@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
 import { imeiCheckDigit } from '../../src/lib/domain/identifiers';
-import { signIn } from './helpers';
+import { hydrated, signIn } from './helpers';
 
 // The server runs with TIDEMARK_FAKES=1 (playwright.config.ts): mail goes to the app's local SMTP
 // server (stored as JSON in $DATA_DIR/fake_mailbox), payments to its local checkout fake.
@@ -79,6 +79,7 @@ test('report → mail → customer approves and pays → job paid and approved �
 
 	// The technician writes the quote: a bad amount is refused beside its field.
 	await page.goto(`/jobs/${job.id}`);
+	await hydrated(page);
 	const quote = page.locator('[data-section="quote"]');
 	await quote.getByLabel('Each (EUR)').first().fill('-5');
 	await quote.getByRole('button', { name: 'Save quote' }).click();
@@ -103,6 +104,7 @@ test('report → mail → customer approves and pays → job paid and approved �
 	// The customer, in a fresh browser without a session, on a phone-sized screen.
 	const customer = await (await browser.newContext({ viewport: { width: 390, height: 844 } })).newPage();
 	await customer.goto(new URL(link!).pathname);
+	await hydrated(customer);
 	await expect(customer.getByRole('heading', { name: 'Findings report' })).toBeVisible();
 	await expect(customer.getByText('The main board needs a repair at component level.')).toBeVisible();
 	await expect(customer.getByTestId('quote-total')).toHaveText('€129.00');
@@ -145,6 +147,7 @@ test('report → mail → customer approves and pays → job paid and approved �
 	// payment (a refund beyond what was paid is refused with the figures) and the job shows it.
 	await expect(side.getByRole('button', { name: 'Refund…' })).toHaveCount(0);
 	await lead.goto(`/jobs/${job.id}`);
+	await hydrated(lead); // "Refund…" opens its form only once the page runs
 	const leadSide = lead.locator('[data-section="customer"]');
 	await leadSide.getByRole('button', { name: 'Refund…' }).click();
 	const amount = leadSide.getByLabel('Amount to refund (EUR)');
