@@ -346,15 +346,14 @@ describe('events', () => {
 });
 
 describe('transactions', () => {
-	it('leaves no half-written event when the run row fails after the step row was written', async () => {
+	it('leaves no half-written event when the step row fails after the run row was moved on', async () => {
 		const { run } = await newRun();
 		const db = await getDb();
-		// A trigger makes the UPDATE of the run row fail, after the step row was inserted in the same
-		// transaction.
+		// run_event_write moves the run row on first; a trigger makes the step row's insert after it fail.
 		await db.execute(sql`create function tm_fail_step_insert() returns trigger language plpgsql as
-			$$ begin raise exception 'forced failure after the step insert'; end $$`);
+			$$ begin raise exception 'forced failure of the step insert'; end $$`);
 		await db.execute(
-			sql`create trigger tm_fail before update on runs for each row execute function tm_fail_step_insert()`
+			sql`create trigger tm_fail before insert on run_steps for each row execute function tm_fail_step_insert()`
 		);
 		try {
 			await expect(
@@ -365,12 +364,14 @@ describe('transactions', () => {
 				)
 			).rejects.toThrow();
 		} finally {
-			await db.execute(sql`drop trigger tm_fail on runs`);
+			await db.execute(sql`drop trigger tm_fail on run_steps`);
 			await db.execute(sql`drop function tm_fail_step_insert()`);
 		}
 		expect(await stepRows(run.id)).toEqual([]);
 		const detail = await runs.get(run.id);
 		expect(detail!.currentStep).toBe('power-on-as-received');
+		const [row] = await db.select().from(runsTable).where(eq(runsTable.id, run.id));
+		expect(row.lastSeq).toBe(0);
 		// The same event goes through once the fault is gone.
 		const ok = await recordEvent(
 			run.id,
@@ -381,8 +382,8 @@ describe('transactions', () => {
 	});
 });
 
-// Each event is decided in its own transaction under its run's row lock (commit.ts): events of one
-// run sent side by side are decided one after the other, each against what the last one wrote.
+// Events of one run sent side by side (commit.ts): each is decided against one read and written only
+// while the run still stands there, so they land one after the other, each decided against the last.
 describe('events that race', () => {
 	async function atCleanAndDry() {
 		const { run } = await newRun();
@@ -461,6 +462,36 @@ describe('events that race', () => {
 			expect(rows).toHaveLength(5);
 		}
 		expect((await runs.get(runId))!.status).toBe('abandoned');
+	});
+
+	it('writes nothing for an event decided against a read the run has moved past', async () => {
+		const runId = await atCleanAndDry();
+		const db = await getDb();
+		const facts = await runs.eventFacts(db, runId, { key: key(), seen: false, back: false });
+		await event(runId, 'ANSWER'); // another event lands after the read
+		const { run } = facts;
+		const write = {
+			run,
+			next: { ...run, snapshot: { moved: 'never' } },
+			at: new Date(),
+			seq: facts.seq,
+			kind: 'test',
+			answer: { outcome: { index: 1, label: 'stale' } },
+			notes: '',
+			actorId: tech.id,
+			key: key(),
+			hash: 'stale',
+			result: { seq: facts.seq, state: runs.stateOf(run) },
+			revises: null
+		};
+		expect(await runs.writeStep(db, write)).toBe(false);
+		const rows = await stepRows(runId);
+		expect(rows.map((r) => r.seq)).toEqual([1, 2, 3, 4, 5, 6]);
+		expect(rows.some((r) => r.bodyHash === 'stale')).toBe(false);
+		// Decided again against a fresh read, the same write lands as the next step.
+		const fresh = await runs.eventFacts(db, runId, { key: key(), seen: false, back: false });
+		expect(await runs.writeStep(db, { ...write, run: fresh.run, seq: fresh.seq })).toBe(true);
+		expect((await stepRows(runId)).map((r) => r.seq)).toEqual([1, 2, 3, 4, 5, 6, 7]);
 	});
 
 	it('a key answered once returns the stored result even after the run moved on', async () => {

@@ -191,42 +191,24 @@ export type StepWrite = {
 };
 
 /**
- * Writes an accepted event in one statement: the run row, then the step row as number `seq` and a
- * BACK's revision, only if the run row still stands where the event was decided: in progress, on
- * the same step, with the same newest step number. Returns false when it does not (nothing
- * written). A key already stored for the run fails the statement as a whole: see ./commit.ts.
+ * Writes an accepted event with one call of the database function `run_event_write`
+ * (drizzle/0020_run_event_write.sql): the run row, then the step row as number `seq` and a BACK's
+ * revision, only if the run row still stands where the event was decided: in progress, on the same
+ * step, with the same newest step number. Returns false when it does not (nothing written). A key
+ * already stored for the run fails the call as a whole: see ./commit.ts.
  */
 export async function writeStep(db: DB | Tx, w: StepWrite): Promise<boolean> {
 	const { run, next } = w;
-	const at = w.at.toISOString();
 	const json = (v: unknown) => JSON.stringify(v);
-	const revised =
-		w.revises === null
-			? sql``
-			: sql`, revised as (
-			update ${runSteps} set superseded_at = ${at}::timestamptz
-			where id = ${w.revises}::bigint and exists (select 1 from moved)
-		)`;
-	const rows = await db.execute<{ moved: number }>(sql`
-		with moved as (
-			update ${runs} set snapshot = ${json(next.snapshot)}::jsonb, current_step = ${next.currentStep},
-				status = ${next.status}, verdict_code = ${next.verdictCode}, verdict_step = ${next.verdictStep},
-				data_reachable = ${next.dataReachable}::boolean, last_seq = ${w.seq},
-				finished_at = ${next.finishedAt?.toISOString() ?? null}::timestamptz, updated_at = ${at}::timestamptz
-			where id = ${run.id}::uuid and status = 'in-progress' and current_step = ${run.currentStep}
-				and last_seq = ${w.seq - 1}
-			returning id
-		), step as (
-			insert into ${runSteps} (run_id, seq, step_id, kind, answer, notes, actor_id, entered_at, answered_at,
-				idempotency_key, body_hash, result)
-			select moved.id, ${w.seq}, ${run.currentStep}, ${w.kind}, ${json(w.answer)}::jsonb, ${w.notes},
-				${w.actorId}::uuid, ${run.updatedAt.toISOString()}::timestamptz, ${at}::timestamptz, ${w.key},
-				${w.hash}, ${json(w.result)}::jsonb
-			from moved
-		)${revised}
-		select count(*)::int as moved from moved`);
-	const list = Array.isArray(rows) ? rows : (rows as { rows: { moved: number }[] }).rows;
-	return Number(list[0]?.moved ?? 0) === 1;
+	const rows = await db.execute<{ wrote: boolean }>(sql`select run_event_write(
+		${run.id}::uuid, ${run.currentStep}, ${w.seq}::integer, ${w.revises}::bigint,
+		${json(next.snapshot)}::jsonb, ${next.currentStep}, ${next.status}, ${next.verdictCode}, ${next.verdictStep},
+		${next.dataReachable}::boolean, ${next.finishedAt?.toISOString() ?? null}::timestamptz,
+		${w.at.toISOString()}::timestamptz, ${run.updatedAt.toISOString()}::timestamptz,
+		${w.kind}, ${json(w.answer)}::jsonb, ${w.notes}, ${w.actorId}::uuid, ${w.key}, ${w.hash},
+		${json(w.result)}::jsonb) as wrote`);
+	const list = Array.isArray(rows) ? rows : (rows as { rows: { wrote: boolean }[] }).rows;
+	return list[0]?.wrote === true;
 }
 
 /** Stops a run that is under way; the reason is kept with it. */
