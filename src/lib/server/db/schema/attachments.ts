@@ -1,6 +1,7 @@
 import { sql } from 'drizzle-orm';
-import { bigint, boolean, check, index, integer, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { bigint, boolean, check, index, integer, pgTable, text, uuid } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { timestamptz } from './columns';
 import { photoSources } from '../../../photos/limits';
 import { jobs } from './jobs';
 import { runs, runSteps } from './runs';
@@ -42,7 +43,7 @@ export const attachments = pgTable(
 		/** Size of the stored original in bytes. */
 		bytes: integer('bytes').notNull(),
 		uploadedBy: uuid('uploaded_by').references(() => users.id),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
 		/** Whether the customer report includes it; staff choose, nothing is shown by default. */
 		shownToCustomer: boolean('shown_to_customer').notNull().default(false)
 	},

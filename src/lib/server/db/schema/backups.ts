@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { bigint, check, index, integer, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { bigint, check, index, integer, pgTable, text, uuid } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 
 export const backupTriggers = ['schedule', 'command', 'lead'] as const;
 export const backupStatuses = ['succeeded', 'failed'] as const;
@@ -14,8 +15,8 @@ export const backupRuns = pgTable(
 		id: uuid('id').primaryKey().defaultRandom(),
 		trigger: text('trigger', { enum: backupTriggers }).notNull(),
 		status: text('status', { enum: backupStatuses }).notNull(),
-		startedAt: timestamp('started_at', { withTimezone: true }).notNull(),
-		finishedAt: timestamp('finished_at', { withTimezone: true }).notNull().defaultNow(),
+		startedAt: timestamptz('started_at').notNull(),
+		finishedAt: timestamptz('finished_at').notNull().defaultNow(),
 		/** The backup file's name (in DATA_DIR/backups, or where the command wrote it). */
 		file: text('file'),
 		bytes: bigint('bytes', { mode: 'number' }),

@@ -1,6 +1,7 @@
 import { sql } from 'drizzle-orm';
-import { check, jsonb, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { check, jsonb, pgTable, text, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { timestamptz } from './columns';
 import { users } from './users';
 import { jobs } from './jobs';
 import { runs } from './runs';
@@ -30,7 +31,7 @@ export const checklistResults = pgTable(
 		kind: text('kind', { enum: ['repair', 'function-test'] }).notNull(),
 		items: jsonb('items').$type<ChecklistItem[]>().notNull(),
 		by: uuid('by').references(() => users.id),
-		at: timestamp('at', { withTimezone: true }).notNull().defaultNow()
+		at: timestamptz('at').notNull().defaultNow()
 	},
 	(t) => [
 		uniqueIndex('checklist_results_run_kind_idx').on(t.runId, t.kind),

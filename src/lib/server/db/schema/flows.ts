@@ -6,11 +6,11 @@ import {
 	jsonb,
 	pgTable,
 	text,
-	timestamp,
 	unique,
 	uuid,
 	type AnyPgColumn
 } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 import type { FlowDefinition } from '../../../flows/schema';
 import { users } from './users';
 
@@ -25,7 +25,7 @@ export const flows = pgTable('flows', {
 		.array()
 		.notNull()
 		.default(sql`'{}'::text[]`),
-	createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+	createdAt: timestamptz('created_at').notNull().defaultNow()
 });
 
 /**
@@ -56,11 +56,11 @@ export const flowVersions = pgTable(
 		reviewComment: text('review_comment'),
 		/** Bumped on every save of a draft; a save naming an older revision is a conflict. */
 		revision: integer('revision').notNull().default(1),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
-		submittedAt: timestamp('submitted_at', { withTimezone: true }),
-		publishedAt: timestamp('published_at', { withTimezone: true }),
-		retiredAt: timestamp('retired_at', { withTimezone: true })
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow(),
+		submittedAt: timestamptz('submitted_at'),
+		publishedAt: timestamptz('published_at'),
+		retiredAt: timestamptz('retired_at')
 	},
 	(t) => [
 		unique('flow_versions_flow_version_uq').on(t.flowId, t.version),

@@ -1,16 +1,7 @@
 import { sql } from 'drizzle-orm';
-import {
-	bigserial,
-	boolean,
-	check,
-	index,
-	integer,
-	pgTable,
-	text,
-	timestamp,
-	uuid
-} from 'drizzle-orm/pg-core';
+import { bigserial, boolean, check, index, integer, pgTable, text, uuid } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { timestamptz } from './columns';
 import { users } from './users';
 import { runs } from './runs';
 
@@ -28,7 +19,7 @@ export const verdictConfirmations = pgTable(
 		confirmed: boolean('confirmed').notNull(),
 		note: text('note').notNull().default(''),
 		by: uuid('by').references(() => users.id),
-		at: timestamp('at', { withTimezone: true }).notNull().defaultNow()
+		at: timestamptz('at').notNull().defaultNow()
 	},
 	(t) => [index('verdict_confirmations_run_idx').on(t.runId, t.at)]
 );
@@ -55,8 +46,8 @@ export const insightRunFacts = pgTable(
 		/** Maker and model as typed at intake, e.g. "Corvana Tern 5". */
 		deviceModel: text('device_model').notNull(),
 		technicianId: uuid('technician_id').notNull(),
-		startedAt: timestamp('started_at', { withTimezone: true }).notNull(),
-		finishedAt: timestamp('finished_at', { withTimezone: true }).notNull(),
+		startedAt: timestamptz('started_at').notNull(),
+		finishedAt: timestamptz('finished_at').notNull(),
 		/** Start to verdict (or to abandonment), whole seconds. */
 		durationS: integer('duration_s').notNull(),
 		/** The answered path, revised answers left out: step ids, chosen outcome/range index, seconds on each. */
@@ -69,7 +60,7 @@ export const insightRunFacts = pgTable(
 		/** Newest verdict confirmation: true confirmed, false overturned, null not judged yet. */
 		confirmed: boolean('confirmed'),
 		confirmationNote: text('confirmation_note'),
-		confirmedAt: timestamp('confirmed_at', { withTimezone: true })
+		confirmedAt: timestamptz('confirmed_at')
 	},
 	(t) => [
 		index('insight_run_facts_seq_idx').on(t.seq),

@@ -11,11 +11,11 @@ import {
 	pgTable,
 	real,
 	text,
-	timestamp,
 	uniqueIndex,
 	uuid
 } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { timestamptz } from './columns';
 import {
 	liquidKinds,
 	liquidTemperatures,
@@ -50,7 +50,7 @@ export const customers = pgTable(
 		name: text('name').notNull(),
 		email: text('email'),
 		phone: text('phone'),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+		createdAt: timestamptz('created_at').notNull().defaultNow()
 	},
 	(t) => [check('customers_contact_check', sql`${t.email} is not null or ${t.phone} is not null`)]
 );
@@ -89,7 +89,7 @@ export const jobs = pgTable(
 			.notNull()
 			.default(sql`'{}'::text[]`),
 		liquid: liquidKind('liquid').notNull(),
-		exposedAt: timestamp('exposed_at', { withTimezone: true }),
+		exposedAt: timestamptz('exposed_at'),
 		submerged: boolean('submerged').notNull(),
 		depthM: real('depth_m'),
 		minutes: real('minutes'),
@@ -107,20 +107,20 @@ export const jobs = pgTable(
 		/** Where the backup went, or why there is none. */
 		dataNote: text('data_note').notNull().default(''),
 		dataRecordedBy: uuid('data_recorded_by').references(() => users.id),
-		dataRecordedAt: timestamp('data_recorded_at', { withTimezone: true }),
+		dataRecordedAt: timestamptz('data_recorded_at'),
 		passcodeStatus: passcodeStatus('passcode_status').notNull(),
 		consentToOpen: boolean('consent_to_open').notNull().default(false),
-		consentAt: timestamp('consent_at', { withTimezone: true }),
+		consentAt: timestamptz('consent_at'),
 		notes: text('notes').notNull().default(''),
 		/** The date the shop told the customer the phone would be ready (intake, default from the turnaround setting). */
-		promisedAt: timestamp('promised_at', { withTimezone: true }),
+		promisedAt: timestamptz('promised_at'),
 		/** What worked when the phone came in; null until someone records it. */
 		preRepairTest: jsonb('pre_repair_test').$type<PreRepairTest>(),
 		status: text('status', { enum: jobStatuses }).notNull().default('received'),
 		technicianId: uuid('technician_id').references(() => users.id),
 		createdBy: uuid('created_by').references(() => users.id),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow()
 	},
 	(t) => [
 		uniqueIndex('jobs_number_idx').on(t.number),
@@ -153,7 +153,7 @@ export const jobEvents = pgTable(
 		fromStatus: text('from_status', { enum: jobStatuses }),
 		toStatus: text('to_status', { enum: jobStatuses }).notNull(),
 		by: uuid('by').references(() => users.id),
-		at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
+		at: timestamptz('at').notNull().defaultNow(),
 		note: text('note').notNull().default('')
 	},
 	(t) => [index('job_events_job_idx').on(t.jobId, t.at)]

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { check, index, integer, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, pgTable, text, uuid } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 
 export const mailStatuses = ['queued', 'sending', 'sent', 'failed'] as const;
 export type MailStatus = (typeof mailStatuses)[number];
@@ -23,11 +24,11 @@ export const outgoingMail = pgTable(
 		status: text('status', { enum: mailStatuses }).notNull().default('queued'),
 		attempts: integer('attempts').notNull().default(0),
 		lastError: text('last_error'),
-		nextAttemptAt: timestamp('next_attempt_at', { withTimezone: true }).notNull().defaultNow(),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		nextAttemptAt: timestamptz('next_attempt_at').notNull().defaultNow(),
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
 		/** When the worker last changed the row; a 'sending' row left behind by a crash is taken back after a while. */
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
-		sentAt: timestamp('sent_at', { withTimezone: true }),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow(),
+		sentAt: timestamptz('sent_at'),
 		/** The Message-ID the SMTP server accepted, to find the mail in the server's logs. */
 		messageId: text('message_id')
 	},

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { check, index, integer, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, pgTable, text, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 import { users } from './users';
 
 export const paymentStatuses = ['pending', 'paid', 'failed', 'refunded'] as const;
@@ -28,9 +29,9 @@ export const payments = pgTable(
 		refundedMinor: integer('refunded_minor').notNull().default(0),
 		/** Why a payment failed, as the service or our checks said it; shown to staff. */
 		failureReason: text('failure_reason'),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
-		paidAt: timestamp('paid_at', { withTimezone: true })
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow(),
+		paidAt: timestamptz('paid_at')
 	},
 	(t) => [
 		uniqueIndex('payments_provider_session_idx').on(t.providerSessionId),
@@ -66,9 +67,9 @@ export const paymentRefunds = pgTable(
 		providerRefundId: text('provider_refund_id'),
 		failureReason: text('failure_reason'),
 		requestedBy: uuid('requested_by').references(() => users.id),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
-		refundedAt: timestamp('refunded_at', { withTimezone: true })
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow(),
+		refundedAt: timestamptz('refunded_at')
 	},
 	(t) => [
 		uniqueIndex('payment_refunds_provider_idx').on(t.providerRefundId),
@@ -88,7 +89,7 @@ export const paymentEvents = pgTable('payment_events', {
 	paymentId: uuid('payment_id').references(() => payments.id),
 	/** What the event did: 'applied', or why it was ignored. */
 	outcome: text('outcome').notNull(),
-	receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow()
+	receivedAt: timestamptz('received_at').notNull().defaultNow()
 });
 
 export type Payment = typeof payments.$inferSelect;

@@ -1,17 +1,7 @@
 import { sql } from 'drizzle-orm';
-import {
-	boolean,
-	check,
-	index,
-	integer,
-	jsonb,
-	pgTable,
-	text,
-	timestamp,
-	uniqueIndex,
-	uuid
-} from 'drizzle-orm/pg-core';
+import { boolean, check, index, integer, jsonb, pgTable, text, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { timestamptz } from './columns';
 import type { QuoteLine } from '../../../domain/money';
 import { jobs } from './jobs';
 import { users } from './users';
@@ -45,16 +35,16 @@ export const quotes = pgTable(
 		grossMinor: integer('gross_minor').notNull(),
 		/** Confirmed by the payment webhook only. */
 		paidMinor: integer('paid_minor').notNull().default(0),
-		paidAt: timestamp('paid_at', { withTimezone: true }),
-		sentAt: timestamp('sent_at', { withTimezone: true }),
+		paidAt: timestamptz('paid_at'),
+		sentAt: timestamptz('sent_at'),
 		/** The name the customer typed to approve, and when. */
 		approvedName: text('approved_name'),
-		approvedAt: timestamp('approved_at', { withTimezone: true }),
+		approvedAt: timestamptz('approved_at'),
 		declinedName: text('declined_name'),
-		declinedAt: timestamp('declined_at', { withTimezone: true }),
+		declinedAt: timestamptz('declined_at'),
 		createdBy: uuid('created_by').references(() => users.id),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow()
 	},
 	(t) => [
 		uniqueIndex('quotes_job_version_idx').on(t.jobId, t.version),
@@ -81,12 +71,12 @@ export const reportLinks = pgTable(
 			.references(() => jobs.id),
 		/** Hex SHA-256 of the token. */
 		tokenHash: text('token_hash').notNull(),
-		expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
-		revokedAt: timestamp('revoked_at', { withTimezone: true }),
+		expiresAt: timestamptz('expires_at').notNull(),
+		revokedAt: timestamptz('revoked_at'),
 		revokedBy: uuid('revoked_by').references(() => users.id),
 		createdBy: uuid('created_by').references(() => users.id),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		lastOpenedAt: timestamp('last_opened_at', { withTimezone: true })
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		lastOpenedAt: timestamptz('last_opened_at')
 	},
 	(t) => [
 		uniqueIndex('report_links_token_hash_idx').on(t.tokenHash),

@@ -1,4 +1,5 @@
-import { index, integer, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+import { index, integer, pgTable, text } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 
 /**
  * Rate-limit counters when the app runs on a PostgreSQL server (several processes share them, and
@@ -10,7 +11,7 @@ export const rateLimits = pgTable(
 	{
 		key: text('key').primaryKey(),
 		points: integer('points').notNull(),
-		expire: timestamp('expire', { withTimezone: true })
+		expire: timestamptz('expire')
 	},
 	(t) => [index('rate_limits_expire_idx').on(t.expire)]
 );

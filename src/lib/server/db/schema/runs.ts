@@ -8,11 +8,11 @@ import {
 	jsonb,
 	pgTable,
 	text,
-	timestamp,
 	uniqueIndex,
 	uuid
 } from 'drizzle-orm/pg-core';
 // Relative imports: drizzle-kit reads this file outside Vite, where $lib does not resolve.
+import { timestamptz } from './columns';
 import { users } from './users';
 import { jobs } from './jobs';
 import { flowVersions } from './flows';
@@ -51,9 +51,9 @@ export const runs = pgTable(
 		/** True once an answer recorded `data-reachable`, false on `data-unreachable`, null while unknown. */
 		dataReachable: boolean('data_reachable'),
 		abandonReason: text('abandon_reason'),
-		startedAt: timestamp('started_at', { withTimezone: true }).notNull().defaultNow(),
-		finishedAt: timestamp('finished_at', { withTimezone: true }),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+		startedAt: timestamptz('started_at').notNull().defaultNow(),
+		finishedAt: timestamptz('finished_at'),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow()
 	},
 	(t) => [
 		index('runs_job_idx').on(t.jobId, t.startedAt),
@@ -87,9 +87,9 @@ export const runSteps = pgTable(
 		notes: text('notes').notNull().default(''),
 		actorId: uuid('actor_id').references(() => users.id),
 		/** When the technician reached the step (the previous answer, or the run's start). */
-		enteredAt: timestamp('entered_at', { withTimezone: true }).notNull(),
-		answeredAt: timestamp('answered_at', { withTimezone: true }).notNull().defaultNow(),
-		supersededAt: timestamp('superseded_at', { withTimezone: true }),
+		enteredAt: timestamptz('entered_at').notNull(),
+		answeredAt: timestamptz('answered_at').notNull().defaultNow(),
+		supersededAt: timestamptz('superseded_at'),
 		idempotencyKey: text('idempotency_key').notNull(),
 		/**
 		 * The SHA-256 of the event's canonical JSON (src/lib/server/idempotency.ts), so the same key

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, index, integer, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+import { boolean, check, index, integer, pgTable, text } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 
 /**
  * The shop's symptom catalogue: what intake offers and what jobs record (jobs.symptoms holds codes).
@@ -14,8 +15,8 @@ export const symptoms = pgTable(
 		group: text('group_name').notNull(),
 		sortOrder: integer('sort_order').notNull().default(0),
 		retired: boolean('retired').notNull().default(false),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow()
 	},
 	(t) => [
 		check('symptoms_code_check', sql`${t.code} ~ '^[a-z0-9]+(-[a-z0-9]+)*$'`),

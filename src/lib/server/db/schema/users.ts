@@ -7,12 +7,12 @@ import {
 	primaryKey,
 	pgTable,
 	text,
-	timestamp,
 	uniqueIndex,
 	uuid,
 	bigserial,
 	integer
 } from 'drizzle-orm/pg-core';
+import { timestamptz } from './columns';
 import { roles } from '../../../roles';
 
 export const roleEnumValues = roles;
@@ -33,8 +33,8 @@ export const users = pgTable(
 		 * password change, role change and disabling, so every earlier token stops working at once.
 		 */
 		sessionGeneration: integer('session_generation').notNull().default(0),
-		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
-		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+		createdAt: timestamptz('created_at').notNull().defaultNow(),
+		updatedAt: timestamptz('updated_at').notNull().defaultNow()
 	},
 	(t) => [
 		uniqueIndex('users_email_lower_idx').on(sql`lower(${t.email})`),
@@ -51,7 +51,7 @@ export const auditLog = pgTable(
 		targetType: text('target_type').notNull(),
 		targetId: text('target_id'),
 		details: jsonb('details').$type<Record<string, unknown>>().notNull().default({}),
-		at: timestamp('at', { withTimezone: true }).notNull().defaultNow()
+		at: timestamptz('at').notNull().defaultNow()
 	},
 	(t) => [index('audit_log_target_idx').on(t.targetType, t.targetId), index('audit_log_at_idx').on(t.at)]
 );
@@ -67,7 +67,7 @@ export const userSeen = pgTable(
 			.notNull()
 			.references(() => users.id, { onDelete: 'cascade' }),
 		list: text('list').notNull(),
-		seenAt: timestamp('seen_at', { withTimezone: true }).notNull()
+		seenAt: timestamptz('seen_at').notNull()
 	},
 	(t) => [primaryKey({ columns: [t.userId, t.list] })]
 );
