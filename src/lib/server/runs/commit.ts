@@ -14,7 +14,7 @@
  * different runs share nothing, so one that fails rolls back alone. The write is the database
  * function run_event_write (drizzle/0020_run_event_write.sql), which holds the same condition.
  */
-import { getHandle, type DB } from '$lib/server/db';
+import { getDb, type DB } from '$lib/server/db';
 import { record } from '$lib/server/audit';
 import { RuleError } from '$lib/server/errors';
 import { bodyHash, keyReusedMessage } from '$lib/server/idempotency';
@@ -40,27 +40,7 @@ export async function recordEvent(
 	actor: Actor
 ): Promise<RunEventResult> {
 	if (!isUuid(runId)) throw new RuleError(404, 'not-found', 'No run with this id.');
-	const { db, kind } = await getHandle();
-	if (kind === 'pglite') return inTurn(() => decideWithRetries(db, runId, event, actor));
-	return decideWithRetries(db, runId, event, actor);
-}
-
-// PGlite answers one statement at a time on this thread, so events share it whatever they do. Taken
-// whole in arrival order, a burst of events is answered first to last; interleaved statement by
-// statement, every event of the burst would wait for nearly all of them (bench/runs: paced p95).
-let turn: Promise<unknown> = Promise.resolve();
-function inTurn<T>(work: () => Promise<T>): Promise<T> {
-	const mine = turn.then(work, work);
-	turn = mine.catch(() => undefined);
-	return mine;
-}
-
-async function decideWithRetries(
-	db: DB,
-	runId: string,
-	event: RunEventInput,
-	actor: Actor
-): Promise<RunEventResult> {
+	const db = await getDb();
 	const hash = bodyHash(event);
 	for (let attempt = 1; ; attempt++) {
 		// PGlite answers on the main thread without real I/O, so events queued behind each other would
