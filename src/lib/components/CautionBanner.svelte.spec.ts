@@ -13,14 +13,31 @@ describe('CautionBanner', () => {
 		expect(why.open).toBe(false);
 		// The flash point named in the vocabulary (NIOSH Pocket Guide) is the reason given.
 		expect(why).toHaveTextContent('11.7 °C');
-		expect(banner.querySelector('svg')).not.toBeNull();
+		expect(iconOf(banner)).toBeTruthy();
 	});
 
-	it.each(CAUTION_CODES.map((c) => [c]))('draws %s with its own icon, words and rule', (code) => {
+	// The icon beside the words (the "Why" chevron is an svg too, further down).
+	const iconOf = (banner: HTMLElement) =>
+		[...(banner.querySelector(':scope > div > svg')?.classList ?? [])].find(
+			(c) => c.startsWith('lucide-') && c !== 'lucide-icon'
+		);
+
+	it.each(CAUTION_CODES.map((c) => [c]))('draws %s with an icon, its words and rule', (code) => {
 		render(CautionBanner, { code });
 		const banner = screen.getByRole('note', { name: `Caution: ${CAUTIONS[code].words}` });
 		expect(banner).toHaveTextContent(CAUTIONS[code].rule);
-		expect(banner.querySelector('svg')).not.toBeNull();
+		expect(iconOf(banner)).toBeTruthy();
+	});
+
+	it('gives every caution an icon of its own', () => {
+		const icons = CAUTION_CODES.map((code) => {
+			const { unmount } = render(CautionBanner, { code });
+			const icon = iconOf(screen.getByRole('note'));
+			unmount();
+			return icon;
+		});
+		expect(icons.every(Boolean)).toBe(true);
+		expect(new Set(icons).size).toBe(CAUTION_CODES.length);
 	});
 });
 
