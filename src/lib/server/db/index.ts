@@ -1,6 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { PGlite, types, type QueryOptions, type Transaction } from '@electric-sql/pglite';
+import { PGlite } from '@electric-sql/pglite';
 import { drizzle as drizzlePglite, type PgliteDatabase } from 'drizzle-orm/pglite';
 import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
 import { drizzle as drizzlePg, type NodePgDatabase } from 'drizzle-orm/node-postgres';
@@ -11,6 +11,7 @@ import { env } from '$lib/server/env';
 import * as schema from './schema';
 import { lockDataDir, releaseLock } from './lock';
 import { tryExclusive, withLock } from './exclusive';
+import { withPreparedStatements } from './pglite-statements';
 
 export { schema };
 type Schema = typeof schema;
@@ -44,33 +45,10 @@ export function migrationsDir() {
 	return path.resolve('drizzle');
 }
 
-// Drizzle hands PGlite the same parsers with every query (dates and a few arrays kept as text, for
-// Drizzle to map), and PGlite copies its map of about 300 parsers to merge them each time: a tenth
-// of a step event's CPU. They are set once on the client instead, and left out of each query.
-const drizzleParsers = Object.fromEntries(
-	[types.TIMESTAMP, types.TIMESTAMPTZ, types.INTERVAL, types.DATE, 1231, 1115, 1185, 1187, 1182].map(
-		(oid) => [oid, (value: string) => value]
-	)
-);
-const lean = (options?: QueryOptions) => (options?.parsers ? { ...options, parsers: undefined } : options);
-
-function withParsersOnce(client: PGlite) {
-	Object.assign(client.parsers, drizzleParsers);
-	const query = client.query.bind(client);
-	client.query = (text, params, options) => query(text, params, lean(options));
-	const transaction = client.transaction.bind(client);
-	client.transaction = (fn) =>
-		transaction((tx: Transaction) => {
-			const txQuery = tx.query.bind(tx);
-			tx.query = (text, params, options) => txQuery(text, params, lean(options));
-			return fn(tx);
-		});
-	return client;
-}
-
+// Every PGlite query runs as a named prepared statement (./pglite-statements.ts).
 async function openPglite(dir: string): Promise<Opened> {
 	if (dir.startsWith('memory://')) {
-		const client = withParsersOnce(await PGlite.create());
+		const client = withPreparedStatements(await PGlite.create());
 		return { db: drizzlePglite({ client, schema }), kind: 'pglite', close: () => client.close(), pool: null };
 	}
 	const pgdata = path.resolve(dir, 'pgdata');
@@ -78,7 +56,7 @@ async function openPglite(dir: string): Promise<Opened> {
 	const lockFile = `${pgdata}.lock`;
 	lockDataDir(lockFile);
 	try {
-		const client = withParsersOnce(await PGlite.create(pgdata));
+		const client = withPreparedStatements(await PGlite.create(pgdata));
 		const close = async () => {
 			await client.close();
 			releaseLock(lockFile);
