@@ -64,6 +64,17 @@ describe('PGlite queries through prepared statements', () => {
 		expect(b.rows[0]).toEqual([1, expect.stringMatching(/^as text: 2026-12-04/), null]);
 	});
 
+	it('sends text of every width byte for byte, and binary values a serializer returns', async () => {
+		const q = 'select $1::text as t, octet_length($1::text) as n, $2::bytea as b';
+		const text = "plain ä € 🌊 \\x00 '; drop table t; -- " + 'long '.repeat(2000);
+		const binary = { serializers: { 17: (x: Uint8Array) => x as unknown as string } };
+		const bytes = new Uint8Array([0, 92, 120, 255]);
+		const a = await plain.query(q, [text, bytes], binary);
+		const b = await prepared.query(q, [text, bytes], binary);
+		expect(b.rows).toEqual(a.rows);
+		expect(b.rows[0]).toMatchObject({ t: text, n: Buffer.byteLength(text), b: bytes });
+	});
+
 	it('reports an update without rows the same way', async () => {
 		const q = 'update t set name = $2 where id = $1';
 		const a = await plain.query(q, [99, 'x']);
