@@ -28,17 +28,7 @@ type Statement = { name: string; paramTypes: number[]; columns: Message | null }
 /** Prepared statements kept per client; the least recently used is closed beyond this. */
 export const STATEMENTS_KEPT = 300;
 
-function concat(parts: Uint8Array[]) {
-	const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
-	let at = 0;
-	for (const p of parts) {
-		out.set(p, at);
-		at += p.length;
-	}
-	return out;
-}
-
-const executeSync = concat([serialize.execute({}), serialize.sync()]);
+const executeSync = Buffer.concat([serialize.execute({}), serialize.sync()]);
 
 /**
  * Bind (text parameters, text results), execute and sync as one message. pg-protocol's own writer
@@ -95,7 +85,7 @@ export function withPreparedStatements(client: PGlite): PGlite {
 		}
 		const name = `tidemark_${++named}`;
 		parts.push(serialize.parse({ name, text }), serialize.describe({ type: 'S', name }), serialize.sync());
-		const described = await client.execProtocolStream(concat(parts), { syncToFs: !inTransaction });
+		const described = await client.execProtocolStream(Buffer.concat(parts), { syncToFs: !inTransaction });
 		const paramTypes = parse.parseDescribeStatementResults(described);
 		const columns = described.find((m) => m.name === 'rowDescription') ?? null;
 		const statement = { name, paramTypes, columns };
@@ -119,7 +109,7 @@ export function withPreparedStatements(client: PGlite): PGlite {
 			});
 			const message = values.every((v) => v === null || typeof v === 'string')
 				? bindExecuteSync(statement.name, values as (string | null)[])
-				: concat([serialize.bind({ statement: statement.name, values }), executeSync]);
+				: Buffer.concat([serialize.bind({ statement: statement.name, values }), executeSync]);
 			const answered = await client.execProtocolStream(message, { syncToFs: !inTransaction });
 			const messages = statement.columns ? [statement.columns, ...answered] : answered;
 			if (!options?.parsers) return parse.parseResults(messages, client.parsers, options)[0] as Results<T>;
