@@ -1,11 +1,12 @@
 import { fireEvent, render, screen, waitFor } from '@testing-library/svelte';
-import { afterEach, describe, expect, it, vi } from 'vitest';
+import { afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import { createActor } from 'xstate';
 import { compileFlow } from '$lib/flows/machine';
 import { dataFirstFlow } from '$lib/flows/data-first-fixture';
 import type { RunDetail } from '$lib/runs/types';
 import DataSecurePanel from './DataSecurePanel.svelte';
 import RunScreen from './RunScreen.svelte';
+import { loadLazyParts } from './lazy-parts.testing';
 
 const definition = dataFirstFlow();
 const jobId = '22222222-2222-4222-8222-222222222222';
@@ -61,6 +62,7 @@ function stubFetch(dataAnswer: () => Response = () => new Response('{}', { statu
 	return calls;
 }
 
+beforeAll(loadLazyParts);
 afterEach(() => vi.unstubAllGlobals());
 
 describe('DataSecurePanel', () => {

@@ -1,10 +1,11 @@
 import { fireEvent, render, screen, waitFor } from '@testing-library/svelte';
-import { afterEach, describe, expect, it, vi } from 'vitest';
+import { afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import { createActor } from 'xstate';
 import { compileFlow } from '$lib/flows/machine';
 import type { FlowDefinition } from '$lib/flows/schema';
 import type { RunDetail } from '$lib/runs/types';
 import RunScreen from './RunScreen.svelte';
+import { loadLazyParts } from './lazy-parts.testing';
 
 // A three-step flow written for this test.
 const definition: FlowDefinition = {
@@ -57,6 +58,7 @@ function detail(): RunDetail {
 const ok = (seq: number, currentStep: string) =>
 	new Response(JSON.stringify({ seq, state: { currentStep, status: 'in-progress' } }), { status: 200 });
 
+beforeAll(loadLazyParts);
 afterEach(() => vi.unstubAllGlobals());
 
 const noHistory = { flowId: 'f', stepId: 'look', runs: 2, minimum: 5, verdicts: [], suggestion: null };

@@ -130,6 +130,16 @@ describe('PGlite queries through prepared statements', () => {
 		expect(order).toEqual(['tx wrote', 'tx ends', 'outside read in tx']);
 	});
 
+	it('refuses once the client is closed, as PGlite does', async () => {
+		const closing = withPreparedStatements(await PGlite.create());
+		await closing.query('select 1');
+		await closing.close();
+		const own = await PGlite.create();
+		await own.close();
+		const expected = await own.query('select 1').catch((e: Error) => e.message);
+		await expect(closing.query('select 1')).rejects.toThrow(expected as string);
+	});
+
 	it(`keeps at most ${STATEMENTS_KEPT} prepared statements, the least recently used closed first`, async () => {
 		const count = async () =>
 			(await prepared.query<{ n: number }>('select count(*)::int as n from pg_prepared_statements')).rows[0]

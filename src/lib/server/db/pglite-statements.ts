@@ -123,10 +123,12 @@ export function withPreparedStatements(client: PGlite): PGlite {
 		}
 	}
 
-	client.query = <T>(text: string, params?: unknown[], options?: QueryOptions) =>
-		client._runExclusiveTransaction(() =>
+	client.query = async <T>(text: string, params?: unknown[], options?: QueryOptions) => {
+		await client._checkReady(); // a closed client refuses, in PGlite's own words
+		return client._runExclusiveTransaction(() =>
 			client._runExclusiveQuery(() => run<T>(text, params, options, false))
 		);
+	};
 	const transaction = client.transaction.bind(client);
 	client.transaction = <T>(fn: (tx: Transaction) => Promise<T>) =>
 		transaction((tx: Transaction) => {
